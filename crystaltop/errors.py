@@ -21,6 +21,8 @@ __all__ = [
     "PluginError",
     "CrossCheckMismatch",
     "DefectGeometryError",
+    "UnknownOperationError",
+    "UnknownOrbitalError",
 ]
 
 
@@ -80,3 +82,14 @@ class CrossCheckMismatch(CrystaltopError):
 
 class DefectGeometryError(CrystaltopError, ValueError):
     """A defect cannot be built as asked (Burgers vector, Frank angle, sample size)."""
+
+
+class UnknownOperationError(CrystaltopError, KeyError):
+    """An operation label (or matrix) that is not an element of the point group at hand."""
+
+    def __str__(self) -> str:  # KeyError would quote the message
+        return str(self.args[0]) if self.args else ""
+
+
+class UnknownOrbitalError(CrystaltopError, ValueError):
+    """An orbital kind that is not one of the real s, p, d functions crystaltop knows."""
