@@ -1,0 +1,6 @@
+"""Band data: batched eigensystems, gap checks, links, Wilson loops and symmetry eigenvalues, cached per grid."""
+
+from .band_data import BandData, DiagonalisationStats, format_k
+from .products import link_matrices, ordered_product, unitary_part
+
+__all__ = ["BandData", "DiagonalisationStats", "format_k", "link_matrices", "ordered_product", "unitary_part"]

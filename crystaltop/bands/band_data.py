@@ -1,0 +1,234 @@
+"""Band data shared by every invariant: eigensystems per grid, computed once and cached.
+
+The dispatcher builds one :class:`BandData` per report and hands it to every plugin. A grid that is a
+sub-grid of one already diagonalised (a plane of a 3D mesh, a TRIM of any even mesh) is sliced out of the
+cache, never diagonalised again; :attr:`BandData.stats` records what was diagonalised.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
+from ..kspace import Grid
+from .products import link_matrices, ordered_product
+
+__all__ = ["BandData", "DiagonalisationStats", "format_k"]
+
+
+def format_k(k) -> str:
+    """A k-point as text, e.g. ``'(0.500, 0.000)'``."""
+    return "(" + ", ".join(f"{float(x):.3f}" for x in np.atleast_1d(k)) + ")"
+
+
+@dataclass
+class DiagonalisationStats:
+    """Bookkeeping of the eigen-decompositions done by one :class:`BandData`."""
+
+    #: number of k-points diagonalised in total
+    k_points: int = 0
+    #: description and size of each batch diagonalised, in order
+    batches: list = field(default_factory=list)
+    #: number of requests served from the cache without diagonalising
+    cache_hits: int = 0
+
+
+class BandData:
+    """Lazily filled band data of one model at one filling.
+
+    Parameters
+    ----------
+    model : BlochModel
+        Anything with ``dim``, ``n_states``, ``lattice``, ``hamiltonian(k)``, ``symmetry_matrix(op, k)``
+        and ``position_phase(dk)``.
+    filling : int
+        Number of occupied bands (counting both spin states of a spinful model).
+    gap_tol : float
+        Smallest direct gap (energy units of the model) accepted between band ``filling`` and ``filling + 1``.
+    herm_tol : float
+        Largest ``|H - H^†|`` accepted (relative to ``|H|``).
+    """
+
+    def __init__(self, model, filling: int, *, gap_tol: float = 1e-6, herm_tol: float = 1e-9):
+        n = int(model.n_states)
+        filling = int(filling)
+        if not 0 < filling < n:
+            raise FillingError(f"filling {filling} is out of range: the model has {n} bands, so 1 <= filling <= {n - 1}")
+        self.model = model
+        self.filling = filling
+        self.gap_tol = float(gap_tol)
+        self.herm_tol = float(herm_tol)
+        self.stats = DiagonalisationStats()
+        self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
+        self._points: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
+        self._gaps: dict[Grid, tuple[float, np.ndarray]] = {}
+        #: every gap checked, in order (the dispatcher reads the part each invariant added)
+        self.gap_log: list[float] = []
+
+    # ------------------------------------------------------------------ diagonalisation
+    def _diagonalise(self, k: np.ndarray, what: str) -> tuple[np.ndarray, np.ndarray]:
+        h = np.asarray(self.model.hamiltonian(k))
+        n = self.model.n_states
+        if h.shape != k.shape[:-1] + (n, n):
+            raise ShapeError(f"H(k) returned shape {h.shape}, expected {k.shape[:-1] + (n, n)}")
+        flat = h.reshape(-1, n, n)
+        dev = np.linalg.norm(flat - np.conj(np.swapaxes(flat, -1, -2)), axis=(-1, -2))
+        scale = np.maximum(np.linalg.norm(flat, axis=(-1, -2)), 1.0)
+        bad = int(np.argmax(dev / scale))
+        if dev[bad] / scale[bad] > self.herm_tol:
+            kk = k.reshape(-1, k.shape[-1])[bad]
+            raise NonHermitianError(f"H(k) is not Hermitian at k={format_k(kk)}: |H - H†| = {dev[bad]:.2e}")
+        e, v = np.linalg.eigh(h)
+        self.stats.k_points += int(np.prod(k.shape[:-1]))
+        self.stats.batches.append((what, int(np.prod(k.shape[:-1]))))
+        return e, v
+
+    def eigensystem(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
+        """Energies ``(*shape, n)`` (ascending) and eigenvectors ``(*shape, n, n)`` (columns) on a grid."""
+        if grid.dim != self.model.dim:
+            raise ShapeError(f"a {grid.dim}D grid was asked of a {self.model.dim}D model")
+        if grid in self._grids:
+            self.stats.cache_hits += 1
+            return self._grids[grid]
+        for cached, (e, v) in self._grids.items():
+            idx = grid.indices_in(cached)
+            if idx is not None:
+                self.stats.cache_hits += 1
+                sel = np.ix_(*idx)
+                out = (e[sel], v[sel])
+                self._grids[grid] = out
+                return out
+        out = self._diagonalise(grid.points, grid.describe())
+        self._grids[grid] = out
+        return out
+
+    def at(self, k) -> tuple[np.ndarray, np.ndarray]:
+        """Energies ``(m, n)`` and eigenvectors ``(m, n, n)`` at arbitrary reduced points ``k`` of shape ``(m, dim)``.
+
+        Points that lie on a cached grid, or were asked before, are not diagonalised again.
+        """
+        k = np.atleast_2d(np.asarray(k, dtype=float))
+        if k.shape[-1] != self.model.dim:
+            raise ShapeError(f"k-points must have shape (m, {self.model.dim}), got {k.shape}")
+        keys = [tuple(np.round(np.mod(p, 1.0), 10) % 1.0) for p in k]
+        missing = []
+        for key in keys:
+            if key in self._points:
+                continue
+            for cached, (e, v) in self._grids.items():
+                idx = Grid(tuple((x,) for x in key), tuple(False for _ in key)).indices_in(cached)
+                if idx is not None:
+                    j = tuple(int(i[0]) for i in idx)
+                    self._points[key] = (e[j], v[j])
+                    break
+            else:
+                missing.append(key)
+        missing = list(dict.fromkeys(missing))
+        if missing:
+            e, v = self._diagonalise(np.array(missing), f"{len(missing)} points")
+            for key, ei, vi in zip(missing, e, v):
+                self._points[key] = (ei, vi)
+        else:
+            self.stats.cache_hits += 1
+        return (np.stack([self._points[key][0] for key in keys]), np.stack([self._points[key][1] for key in keys]))
+
+    # ------------------------------------------------------------------ occupied subspace and gap
+    def occupied(self, grid: Grid) -> np.ndarray:
+        """Occupied eigenvectors ``(*shape, n, filling)`` after checking the gap on the grid."""
+        self.check_gap(grid)
+        return self.eigensystem(grid)[1][..., : self.filling]
+
+    def gap(self, grid: Grid) -> tuple[float, np.ndarray]:
+        """Smallest direct gap above the occupied bands on the grid and the k-point where it occurs."""
+        if grid not in self._gaps:
+            e, _ = self.eigensystem(grid)
+            g = e[..., self.filling] - e[..., self.filling - 1]
+            j = np.unravel_index(int(np.argmin(g)), g.shape)
+            self._gaps[grid] = (float(g[j]), grid.points[j])
+        return self._gaps[grid]
+
+    def check_gap(self, grid: Grid) -> float:
+        """The smallest direct gap on the grid; :class:`GapClosedError` naming the k-point if below tolerance."""
+        g, k = self.gap(grid)
+        self.gap_log.append(g)
+        if g < self.gap_tol:
+            raise GapClosedError(
+                f"the gap between bands {self.filling} and {self.filling + 1} closes at k={format_k(k)} "
+                f"(gap {g:.2e} < tolerance {self.gap_tol:.0e}) on the {grid.describe()} mesh")
+        return g
+
+    def check_gap_at(self, k) -> float:
+        """The smallest direct gap at the given points; :class:`GapClosedError` naming the point if too small."""
+        e, _ = self.at(k)
+        g = e[:, self.filling] - e[:, self.filling - 1]
+        j = int(np.argmin(g))
+        self.gap_log.append(float(g[j]))
+        if g[j] < self.gap_tol:
+            raise GapClosedError(
+                f"the gap between bands {self.filling} and {self.filling + 1} closes at k={format_k(np.atleast_2d(k)[j])} "
+                f"(gap {g[j]:.2e} < tolerance {self.gap_tol:.0e})")
+        return float(g[j])
+
+    @property
+    def smallest_gap(self) -> float | None:
+        """Smallest direct gap over every grid checked so far (None before any)."""
+        return min((g for g, _ in self._gaps.values()), default=None)
+
+    # ------------------------------------------------------------------ links and Wilson loops
+    def links(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
+        """Link matrices ``<u(k)| e^{-2πi dk·X} |u(k + dk)>`` along a periodic axis, shape ``(*shape, m, m)``.
+
+        With ``embed=False`` the position phase is left out (periodic-gauge links, enough for Chern numbers).
+        """
+        if not grid.periodic[axis]:
+            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
+        occ = self.occupied(grid)
+        phase = None
+        if embed:
+            dk = np.zeros(self.model.dim)
+            dk[axis] = 1.0 / grid.shape[axis]
+            phase = np.asarray(self.model.position_phase(dk))
+        return link_matrices(occ, axis, phase)
+
+    def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
+        """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""
+        return ordered_product(self.links(grid, axis, embed=True), axis)
+
+    def wannier_centres(self, grid: Grid, axis: int) -> np.ndarray:
+        """Hybrid Wannier centres along ``axis`` in ``[0, 1)`` (reduced units), sorted, ``(*other_shape, m)``.
+
+        Centre = ``-arg(λ) / 2π`` for each eigenvalue λ of the Wilson loop (Berry convention of docs/conventions.md).
+        """
+        lam = np.linalg.eigvals(self.wilson_loops(grid, axis))
+        return np.sort(np.mod(-np.angle(lam) / (2 * np.pi), 1.0), axis=-1)
+
+    # ------------------------------------------------------------------ symmetry eigenvalues
+    def symmetry_representation(self, op, k, *, tol: float = 1e-6) -> np.ndarray:
+        """The matrix ``V(k)^† D_g(k) V(k)`` of an operation on the occupied subspace at a momentum it fixes.
+
+        Correct when occupied bands are degenerate (the whole occupied subspace is used). Raises
+        :class:`SymmetryBreakingError` if ``g`` does not fix ``k`` or the occupied subspace is not invariant.
+        """
+        k = np.asarray(k, dtype=float).reshape(self.model.dim)
+        lattice = self.model.lattice
+        gk = np.asarray(op.acts_on_k(k, lattice), dtype=float)
+        shift = gk - k
+        if np.max(np.abs(shift - np.round(shift))) > 1e-8:
+            raise SymmetryBreakingError(f"operation {op.label} does not fix k={format_k(k)} (it maps it to {format_k(gk)})")
+        self.check_gap_at(k[None])
+        v = self.at(k[None])[1][0][:, : self.filling]
+        d = np.asarray(self.model.symmetry_matrix(op, k))
+        s = np.conj(v.T) @ d @ v
+        dev = np.linalg.norm(np.conj(s.T) @ s - np.eye(self.filling))
+        if dev > tol:
+            raise SymmetryBreakingError(
+                f"operation {op.label} does not map the occupied states at k={format_k(k)} onto themselves "
+                f"(deviation from unitarity {dev:.1e}): the model breaks it or bands are degenerate across the filling")
+        return s
+
+    def symmetry_eigenvalues(self, op, k) -> np.ndarray:
+        """Eigenvalues of :meth:`symmetry_representation`, sorted by phase angle."""
+        lam = np.linalg.eigvals(self.symmetry_representation(op, k))
+        return lam[np.argsort(np.angle(lam), kind="stable")]

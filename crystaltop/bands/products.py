@@ -1,0 +1,62 @@
+"""Ordered products of link matrices: Wilson loops without a Python loop over k-points."""
+
+from __future__ import annotations
+
+import numpy as np
+
+__all__ = ["ordered_product", "link_matrices", "unitary_part"]
+
+
+def ordered_product(mats: np.ndarray, axis: int) -> np.ndarray:
+    """Product ``M_0 @ M_1 @ ... @ M_{N-1}`` of the matrices stacked along ``axis``.
+
+    Parameters
+    ----------
+    mats : ndarray, shape (..., N, ..., m, m)
+        Square matrices in the last two dimensions; ``axis`` indexes the factors and must not be one of them.
+    axis : int
+        The batch axis holding the ordered factors.
+
+    Returns
+    -------
+    ndarray
+        The products, with ``axis`` removed. Computed by pairwise reduction in ``ceil(log2 N)`` batched
+        matrix multiplications, so the order of the factors is kept exactly.
+    """
+    m = np.moveaxis(mats, axis, 0)
+    while m.shape[0] > 1:
+        if m.shape[0] % 2:
+            eye = np.broadcast_to(np.eye(m.shape[-1], dtype=m.dtype), (1,) + m.shape[1:])
+            m = np.concatenate([m, eye], axis=0)
+        m = m[0::2] @ m[1::2]
+    return m[0]
+
+
+def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None) -> np.ndarray:
+    """Overlap matrices ``<u(k)| P |u(k + dk)>`` between neighbours along a periodic grid axis.
+
+    Parameters
+    ----------
+    vectors : ndarray, shape (*grid, n, m)
+        The ``m`` chosen eigenvectors at every grid point.
+    axis : int
+        Grid axis (counted among the leading grid dimensions) along which neighbours are taken; the last
+        point is linked to the first (periodic gauge, ``H(k + G) = H(k)``).
+    phase : ndarray, shape (n, n), optional
+        The position phase ``exp(-2πi dk·X)`` of one step, which makes the links those of the
+        position-gauge Bloch functions (so that Wilson-loop phases are true Wannier centres).
+
+    Returns
+    -------
+    ndarray, shape (*grid, m, m)
+    """
+    nxt = np.roll(vectors, -1, axis=axis)
+    if phase is not None:
+        nxt = phase @ nxt
+    return np.conj(np.swapaxes(vectors, -1, -2)) @ nxt
+
+
+def unitary_part(mats: np.ndarray) -> np.ndarray:
+    """The closest unitary matrix to each matrix (polar decomposition via SVD), batched."""
+    u, _, vh = np.linalg.svd(mats)
+    return u @ vh

@@ -1,0 +1,233 @@
+"""The plugin contract: everything an invariant plugin needs, and nothing else.
+
+An invariant plugin is a module (or any object) with a function marked ``@hookimpl`` named
+``crystaltop_invariants`` that returns the :class:`Invariant` objects it provides. It is installed under the
+entry-point group ``crystaltop.invariants`` (see ``ENTRY_POINT_GROUP``); the built-in plugins in
+``crystaltop_plugins`` are registered through the very same entry point.
+
+Rules of an invariant (each backed by a check in :mod:`crystaltop.testing`):
+
+1. ``name`` is a unique lower-case identifier; it is the report key.
+2. ``requires`` is a :class:`Requirements` record: applicability is decided from it alone, without a model.
+3. ``compute(context)`` reads bands only through ``context.bands`` (shared, cached), results of other
+   invariants only through ``context.result(name)`` for names it declared in ``uses``/``optional_uses``,
+   and returns an :class:`Outcome`. It raises :class:`~crystaltop.errors.NotApplicable` when, on closer look,
+   it does not apply, and any other exception (best a :class:`~crystaltop.errors.CrystaltopError` with a
+   one-line message) when it cannot give a trustworthy value. It never returns a value it does not trust.
+4. The value is gauge-, basis- and origin-safe: unchanged under a unitary change of the orbital basis and
+   under k-dependent phases of the Bloch states.
+5. The value and ``details`` are plain data (numbers, strings, tuples, lists, dicts, numpy arrays).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Any, Mapping
+
+import pluggy
+
+from .bands import BandData
+from .errors import NotApplicable
+from .kspace import Grid, line, plane, trims, uniform_mesh
+
+__all__ = [
+    "PROJECT",
+    "ENTRY_POINT_GROUP",
+    "hookimpl",
+    "hookspec",
+    "Requirements",
+    "Invariant",
+    "Outcome",
+    "CrossCheck",
+    "Context",
+    "NotApplicable",
+    "BandData",
+    "Grid",
+    "uniform_mesh",
+    "plane",
+    "line",
+    "trims",
+    "ELEMENTS",
+]
+
+PROJECT = "crystaltop"
+ENTRY_POINT_GROUP = "crystaltop.invariants"
+
+hookspec = pluggy.HookspecMarker(PROJECT)
+hookimpl = pluggy.HookimplMarker(PROJECT)
+
+#: The vocabulary of symmetry elements a requirement may name (see PointGroup.elements).
+ELEMENTS = frozenset({"inversion", "C2", "C3", "C4", "C6", "mirror", "mirror_z"})
+
+
+@dataclass(frozen=True)
+class Requirements:
+    """What an invariant needs, as data.
+
+    Attributes
+    ----------
+    dims : frozenset of int
+        Dimensions of models it applies to.
+    elements : frozenset of str
+        Symmetry elements that must all be present in the group (vocabulary :data:`ELEMENTS`).
+    any_elements : frozenset of str
+        If not empty, at least one of these must be present.
+    time_reversal : bool or None
+        True: needs time-reversal symmetry; False: applies only when it is absent; None: either.
+    spinful : bool or None
+        True: needs spin-1/2 (T² = −1 when time reversal is present); False: spinless only; None: either.
+    uses : tuple of str
+        Invariants whose results it reads; each must have succeeded, or this one is skipped.
+    optional_uses : tuple of str
+        Invariants it reads when they succeeded (cross-checks); they run before it when present.
+    """
+
+    dims: frozenset = frozenset({1, 2, 3})
+    elements: frozenset = frozenset()
+    any_elements: frozenset = frozenset()
+    time_reversal: bool | None = None
+    spinful: bool | None = None
+    uses: tuple = ()
+    optional_uses: tuple = ()
+
+    def __post_init__(self):
+        object.__setattr__(self, "dims", frozenset(int(d) for d in self.dims))
+        object.__setattr__(self, "elements", frozenset(self.elements))
+        object.__setattr__(self, "any_elements", frozenset(self.any_elements))
+        object.__setattr__(self, "uses", tuple(self.uses))
+        object.__setattr__(self, "optional_uses", tuple(self.optional_uses))
+        unknown = (self.elements | self.any_elements) - ELEMENTS
+        if unknown:
+            raise ValueError(f"unknown symmetry element(s) {sorted(unknown)}; known: {sorted(ELEMENTS)}")
+
+    def why_not(self, *, elements, dim: int, time_reversal: bool, spinful: bool | None = None) -> str | None:
+        """The reason this does not apply, or None if it applies (decided without a Hamiltonian)."""
+        if dim not in self.dims:
+            return f"needs a model of dimension {' or '.join(str(d) for d in sorted(self.dims))}"
+        missing = sorted(self.elements - set(elements))
+        if missing:
+            return "needs " + ", ".join(missing) + " in the point group"
+        if self.any_elements and not (self.any_elements & set(elements)):
+            return "needs one of " + ", ".join(sorted(self.any_elements)) + " in the point group"
+        if self.time_reversal is True and not time_reversal:
+            return "needs time-reversal symmetry"
+        if self.time_reversal is False and time_reversal:
+            return "applies only without time-reversal symmetry"
+        if self.spinful is not None and spinful is not None and self.spinful != spinful:
+            return "needs a spinful model" if self.spinful else "needs a spinless model"
+        return None
+
+
+@dataclass(frozen=True)
+class CrossCheck:
+    """A second, independent determination of an invariant."""
+
+    #: name of the second method (with its reference)
+    method: str
+    #: the value it gave (in the form it determines, e.g. the Chern number mod 4)
+    value: Any
+    #: whether it agrees with the main value
+    agree: bool
+    #: what exactly was compared
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """What an invariant's ``compute`` returns; the dispatcher turns it into a report record."""
+
+    #: the value of the invariant (plain data)
+    value: Any
+    #: the method, with its reference
+    method: str
+    #: the mesh or k-points used, as text
+    mesh: str = ""
+    #: convergence figure (e.g. largest plaquette phase / π); smaller is better
+    convergence: float | None = None
+    #: what the convergence figure is
+    convergence_label: str = ""
+    #: the cross-check against a second method, if the symmetry allows one
+    cross_check: CrossCheck | None = None
+    #: cross-checks this invariant provides for *other* invariants it uses, keyed by their names
+    checks_for: Mapping[str, CrossCheck] = field(default_factory=dict)
+    #: further plain-data details (per-plane values, eigenvalue counts, ...)
+    details: Mapping[str, Any] = field(default_factory=dict)
+    #: notes for the reader, e.g. "quantised to 0 or 1/2 by inversion"
+    notes: tuple = ()
+
+
+class Invariant:
+    """Base class of an invariant plugin object (subclassing is optional; the attributes are the contract)."""
+
+    #: report key, e.g. "chern"
+    name: str = ""
+    #: human-readable title, e.g. "Chern number"
+    title: str = ""
+    #: what it needs
+    requires: Requirements = Requirements()
+
+    def compute(self, context: "Context") -> Outcome:  # pragma: no cover - abstract
+        raise NotImplementedError
+
+
+class Context:
+    """What an invariant sees while it computes.
+
+    Attributes
+    ----------
+    model : BlochModel
+    group : PointGroup
+        The group the model was checked against.
+    dim, filling : int
+    time_reversal : bool
+        Whether the model is treated as time-reversal symmetric (checked).
+    spinful : bool
+    bands : BandData
+        Shared, lazily filled band data; use it for every eigensystem.
+    options : Mapping
+        Options given by the user for this invariant (e.g. ``{"mesh": 60}``).
+    """
+
+    def __init__(self, *, model, group, filling, time_reversal, bands, results, options, allowed):
+        self.model = model
+        self.group = group
+        self.dim = int(model.dim)
+        self.filling = int(filling)
+        self.time_reversal = bool(time_reversal)
+        self.spinful = bool(getattr(model, "spinful", False))
+        self.bands = bands
+        self.options = MappingProxyType(dict(options or {}))
+        self._results = results
+        self._allowed = frozenset(allowed)
+
+    @property
+    def lattice(self):
+        return self.model.lattice
+
+    @property
+    def elements(self) -> frozenset:
+        return self.group.elements(self.dim)
+
+    def result(self, name: str):
+        """The successful result of an invariant declared in ``uses``/``optional_uses``, or None."""
+        if name not in self._allowed:
+            raise KeyError(f"invariant result '{name}' was not declared in uses/optional_uses")
+        res = self._results.get(name)
+        return res if res is not None and res.status == "ok" else None
+
+    def option(self, key: str, default=None):
+        return self.options.get(key, default)
+
+
+class _HookSpecs:
+    """Hook specifications of crystaltop (one hook)."""
+
+    @hookspec
+    def crystaltop_invariants(self):
+        """Return the invariants this plugin provides.
+
+        Called once when the registry is built (after entry points are loaded). Takes no arguments.
+        Must return a list (or tuple) of :class:`Invariant`-like objects, each with ``name``, ``title``,
+        ``requires`` (a :class:`Requirements`) and ``compute(context) -> Outcome``.
+        """
