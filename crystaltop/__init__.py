@@ -13,12 +13,33 @@ Examples
 
 from __future__ import annotations
 
-from . import errors
-from .classify import classify
-from .dispatch import InvariantRegistry, applicability, applicable_invariants, default_registry
-from .models import BlochFunction, BlochModel, LatticeModel
-from .report import Report, Result
-from .symmetry import Operation, PointGroup, all_point_groups, point_group, point_group_of, space_group_of
+import importlib
+
+# Public names and the module that defines each; loaded on first use (PEP 562), so that importing one layer
+# (e.g. crystaltop.symmetry) does not import them all.
+_EXPORTS = {
+    "point_group": "symmetry", "point_group_of": "symmetry", "space_group_of": "symmetry",
+    "all_point_groups": "symmetry", "PointGroup": "symmetry", "Operation": "symmetry",
+    "LatticeModel": "models", "BlochFunction": "models", "BlochModel": "models",
+    "classify": "classify", "applicable_invariants": "dispatch", "applicability": "dispatch",
+    "InvariantRegistry": "dispatch", "default_registry": "dispatch",
+    "Report": "report", "Result": "report",
+}
+
+
+def __getattr__(name):
+    if name in _EXPORTS:
+        value = getattr(importlib.import_module(f".{_EXPORTS[name]}", __name__), name)
+        globals()[name] = value
+        return value
+    if name == "errors":
+        return importlib.import_module(".errors", __name__)
+    raise AttributeError(f"module 'crystaltop' has no attribute '{name}'")
+
+
+def __dir__():
+    return sorted(set(globals()) | set(_EXPORTS))
+
 
 __version__ = "0.1.0"
 

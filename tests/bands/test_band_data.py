@@ -1,0 +1,63 @@
+"""Band data: ordered products, Wilson-loop conventions, caching of sub-grids, gap and Hermiticity errors."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from crystaltop.bands import BandData, ordered_product
+from crystaltop.errors import FillingError, GapClosedError, NonHermitianError
+from crystaltop.kspace import plane, uniform_mesh
+
+from ._two_band import AtomicChain, TwoBandPlane
+
+
+@settings(max_examples=25, deadline=None)
+@given(n=st.integers(1, 17), m=st.integers(1, 3), seed=st.integers(0, 10_000))
+def test_ordered_product_equals_the_sequential_product(n, m, seed):
+    rng = np.random.default_rng(seed)
+    mats = rng.normal(size=(3, n, m, m)) + 1j * rng.normal(size=(3, n, m, m))
+    expected = np.stack([np.linalg.multi_dot([np.eye(m)] + [mats[b, j] for j in range(n)] + [np.eye(m)])
+                         for b in range(3)])
+    assert np.allclose(ordered_product(mats, axis=1), expected)
+
+
+@pytest.mark.parametrize("x0", [0.0, 0.1, 0.3, 0.75])
+def test_wannier_centre_of_an_atomic_orbital_is_its_position(x0):
+    # Common practice (no source): an isolated occupied orbital at x0 has its Wannier centre at x0.
+    bands = BandData(AtomicChain(x0), filling=1)
+    centres = bands.wannier_centres(uniform_mesh((16,)), axis=0)
+    assert centres.shape == (1,)
+    assert abs(((centres[0] - x0) + 0.5) % 1 - 0.5) < 1e-12
+
+
+def test_a_plane_of_a_cached_mesh_is_sliced_not_diagonalised_again():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    bands.eigensystem(uniform_mesh((8, 8)))
+    assert bands.stats.k_points == 64
+    e_line, _ = bands.eigensystem(plane(2, 0, 0.5, (8,)))
+    e_half, _ = bands.eigensystem(uniform_mesh((4, 4)))
+    bands.at([[0.5, 0.5], [0.0, 0.25]])
+    assert bands.stats.k_points == 64  # nothing new diagonalised
+    assert e_line.shape == (1, 8, 2) and e_half.shape == (4, 4, 2)
+    assert np.allclose(e_line[0, 0], [-np.sqrt((1.0 - 1 + 1) ** 2), np.sqrt((1.0 - 1 + 1) ** 2)])
+
+
+def test_a_closed_gap_names_the_k_point():
+    # Qi–Wu–Zhang (Phys. Rev. B 74, 085308 (2006)): at m = 2 the gap closes at M = (1/2, 1/2).
+    bands = BandData(TwoBandPlane(2.0), filling=1)
+    with pytest.raises(GapClosedError, match=r"k=\(0\.500, 0\.500\)"):
+        bands.check_gap(uniform_mesh((8, 8)))
+
+
+def test_non_hermitian_input_is_refused_with_the_k_point():
+    bands = BandData(AtomicChain(0.0, hermitian=False), filling=1)
+    with pytest.raises(NonHermitianError, match=r"not Hermitian at k=\(0\.000\)"):
+        bands.eigensystem(uniform_mesh((4,)))
+
+
+@pytest.mark.parametrize("filling", [0, 2, -1])
+def test_filling_out_of_range_is_refused(filling):
+    with pytest.raises(FillingError, match="out of range"):
+        BandData(TwoBandPlane(1.0), filling=filling)
