@@ -29,7 +29,7 @@ def resolve_group(model, group):
 
 def classify(model, group=None, filling=None, *, time_reversal=None, invariants=None, options=None,
              registry=None, gap_tol: float = 1e-6, symmetry_tol: float = 1e-8, samples: int = 16,
-             seed: int = 0) -> Report:
+             seed: int = 0, gauge_seed: int | None = None) -> Report:
     """Every invariant that the model's symmetry allows, in one report.
 
     Parameters
@@ -55,6 +55,8 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
         Largest relative violation ``||D H(k) D† − H(gk)|| / ||H||`` accepted for a declared operation.
     samples, seed : int
         Random k-points used for the symmetry checks.
+    gauge_seed : int, optional
+        For testing: random phases on every eigenvector (no invariant may change).
 
     Returns
     -------
@@ -70,7 +72,7 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
     from .models import check_hermitian, symmetry_violations
 
     pg = resolve_group(model, group)
-    pg.in_basis(_padded(model.lattice))  # LatticeMismatchError naming the operation if the lattice refuses it
+    pg.in_basis(np.asarray(model.lattice, dtype=float))  # LatticeMismatchError naming the operation if the lattice refuses it
     n = int(model.n_states)
     if filling is None:
         filling = n // 2
@@ -99,7 +101,7 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
         raise FillingError(f"filling {filling} is odd, but with T² = −1 every band is paired at the "
                            "time-reversal-invariant momenta (Kramers): an insulator needs an even filling")
 
-    bands = BandData(model, filling, gap_tol=gap_tol)
+    bands = BandData(model, filling, gap_tol=gap_tol, gauge_seed=gauge_seed)
     results = run_invariants(model=model, group=pg, filling=filling, time_reversal=use_t, bands=bands,
                              registry=registry, only=invariants, options=options)
     checks = {"symmetry_violation": viol, "samples": samples, "symmetry_tol": symmetry_tol}
@@ -110,7 +112,3 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
     stats = {"k_points": bands.stats.k_points, "batches": list(bands.stats.batches),
              "cache_hits": bands.stats.cache_hits}
     return Report(model=summary, checks=checks, results=results, band_stats=stats)
-
-
-def _padded(lattice):
-    return np.asarray(lattice, dtype=float)

@@ -49,9 +49,13 @@ class BandData:
         Smallest direct gap (energy units of the model) accepted between band ``filling`` and ``filling + 1``.
     herm_tol : float
         Largest ``|H - H^†|`` accepted (relative to ``|H|``).
+    gauge_seed : int, optional
+        For testing: multiply every eigenvector by a random phase (seeded), so that a plugin relying on the
+        eigensolver's gauge is caught; every invariant must give the same value with any seed.
     """
 
-    def __init__(self, model, filling: int, *, gap_tol: float = 1e-6, herm_tol: float = 1e-9):
+    def __init__(self, model, filling: int, *, gap_tol: float = 1e-6, herm_tol: float = 1e-9,
+                 gauge_seed: int | None = None):
         n = int(model.n_states)
         filling = int(filling)
         if not 0 < filling < n:
@@ -60,6 +64,7 @@ class BandData:
         self.filling = filling
         self.gap_tol = float(gap_tol)
         self.herm_tol = float(herm_tol)
+        self._gauge_rng = None if gauge_seed is None else np.random.default_rng(gauge_seed)
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
         self._points: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
@@ -81,6 +86,8 @@ class BandData:
             kk = k.reshape(-1, k.shape[-1])[bad]
             raise NonHermitianError(f"H(k) is not Hermitian at k={format_k(kk)}: |H - H†| = {dev[bad]:.2e}")
         e, v = np.linalg.eigh(h)
+        if self._gauge_rng is not None:
+            v = v * np.exp(2j * np.pi * self._gauge_rng.random(e.shape))[..., None, :]
         self.stats.k_points += int(np.prod(k.shape[:-1]))
         self.stats.batches.append((what, int(np.prod(k.shape[:-1]))))
         return e, v
