@@ -27,7 +27,6 @@ from __future__ import annotations
 import re
 from collections import Counter
 from dataclasses import dataclass
-from functools import lru_cache
 from typing import Iterable, Mapping
 
 import sympy
@@ -40,7 +39,7 @@ __all__ = [
     "TYPE_SYMBOLS",
     "entry",
     "normalize_symbol",
-    "class_of_type_counts",
+    "settings_of",
     "type_count_key",
 ]
 
@@ -176,6 +175,11 @@ def _first_setting(symbol: str) -> str:
     return next(setting for setting, group in _ENTRIES.items() if group.symbol == symbol)
 
 
+def settings_of(symbol: str) -> tuple[str, ...]:
+    """The settings of a class symbol, the default one first (``"3m"`` -> ``("3m1", "31m")``)."""
+    return tuple(setting for setting, group in _ENTRIES.items() if group.symbol == symbol)
+
+
 _LOOKUP = _lookup_table()
 _BAR = re.compile(r"(\d)\u0305")  # "4̄" written with a combining overline
 
@@ -212,25 +216,3 @@ def type_count_key(type_symbols: Iterable[str]) -> tuple[int, ...]:
     """Counts of the operation types, in the order of :data:`TYPE_SYMBOLS`."""
     counts = Counter(type_symbols)
     return tuple(counts.get(name, 0) for name in TYPE_SYMBOLS)
-
-
-@lru_cache(maxsize=1)
-def _class_type_counts() -> dict[tuple[int, ...], str]:
-    # Derived from the generators, so identification always agrees with the catalogue; the tests
-    # check these counts against the ITA tables independently.
-    from .closure import close_exactly
-    from .operations import make_operation
-
-    table: dict[tuple[int, ...], str] = {}
-    for symbol in CLASS_SYMBOLS:
-        group = _ENTRIES[_first_setting(symbol)]
-        ops = [make_operation(m) for m in close_exactly(group.generator_matrices())]
-        table[type_count_key(op.type_symbol for op in ops)] = symbol
-    if len(table) != len(CLASS_SYMBOLS):  # pragma: no cover - a property of the 32 classes
-        raise AssertionError("operation-type counts do not distinguish the 32 classes")
-    return table
-
-
-def class_of_type_counts(key: tuple[int, ...]) -> str | None:
-    """Class symbol with the given operation-type counts, or None if no crystallographic class has them."""
-    return _class_type_counts().get(tuple(key))

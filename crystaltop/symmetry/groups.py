@@ -19,7 +19,7 @@ import sympy
 from crystaltop.errors import CrystaltopError, ShapeError, UnknownGroupError, UnknownOperationError
 
 from .axis_angle import check_orthogonal
-from .catalogue import CLASS_SYMBOLS, GroupEntry, class_of_type_counts, entry, normalize_symbol, type_count_key
+from .catalogue import CLASS_SYMBOLS, entry, normalize_symbol, settings_of, type_count_key
 from .closure import canonical, check_group_axioms, close_exactly, exact_matrix, exact_number, is_exact
 from .lattice_basis import matrix_in_basis
 from .operations import Operation, make_operation
@@ -281,7 +281,7 @@ class PointGroup:
             operations=tuple(ops),
             generators=_greedy_generators(ops),
         )
-        for setting in _settings_of(symbol):
+        for setting in settings_of(symbol):
             standard = point_group(setting)
             if standard.approx_equal(candidate, tol):
                 return _with_setting(candidate, setting, np.eye(3))
@@ -429,10 +429,19 @@ def _with_setting(group: PointGroup, setting: str, frame: np.ndarray) -> PointGr
 # helpers
 
 
-def _settings_of(symbol: str) -> list[str]:
-    from .catalogue import _ENTRIES
+@lru_cache(maxsize=1)
+def _classes_by_type_counts() -> dict[tuple[int, ...], str]:
+    # Derived from the catalogue itself, so identification always agrees with point_group(); the tests
+    # check these counts against the ITA tables independently.
+    table = {type_count_key(op.type_symbol for op in group): group.symbol for group in all_point_groups()}
+    if len(table) != len(CLASS_SYMBOLS):  # pragma: no cover - a property of the 32 classes
+        raise AssertionError("operation-type counts do not distinguish the 32 classes")
+    return table
 
-    return [setting for setting, group in _ENTRIES.items() if group.symbol == symbol]
+
+def class_of_type_counts(key: Sequence[int]) -> str | None:
+    """Class symbol with these counts of operation types (order of ``catalogue.TYPE_SYMBOLS``), or None."""
+    return _classes_by_type_counts().get(tuple(key))
 
 
 def _sort_key(op: Operation) -> tuple:
