@@ -12,6 +12,7 @@ matrices ``W`` in the cell's basis; their Cartesian form is ``R = Aáµ€ W inv(Aáµ
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 from typing import Any, Hashable, Sequence
 
@@ -179,7 +180,11 @@ def _dataset(cell: tuple[np.ndarray, np.ndarray, np.ndarray], symprec: float) ->
     if not (isinstance(symprec, (int, float)) and symprec > 0):
         raise ShapeError(f"symprec must be a positive number, got {symprec!r}")
     try:
-        dataset = spglib.get_symmetry_dataset(cell, symprec=symprec)
+        with warnings.catch_warnings():
+            # In its old error mode spglib warns on every call that the mode is deprecated; both modes
+            # are handled here, so the warning says nothing to our callers.
+            warnings.filterwarnings("ignore", category=DeprecationWarning, module=r"spglib(\.|$)")
+            dataset = spglib.get_symmetry_dataset(cell, symprec=symprec)
     except spglib.SpglibError as exc:
         raise CrystaltopError(f"spglib could not find the symmetry of the cell: {exc}") from None
     if dataset is None:
@@ -192,8 +197,6 @@ def _spglib_message() -> str:
     if getter is None:  # pragma: no cover - future spglib without the old interface
         return "no reason given"
     try:
-        import warnings
-
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             return str(getter())
