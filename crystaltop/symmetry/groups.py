@@ -65,8 +65,8 @@ class PointGroup:
     frame: np.ndarray | None = field(default=None, compare=False, repr=False)
     """(3, 3) rotation taking the standard frame of the setting onto this group's frame (columns are the
     images of x, y, z), or None when unknown (groups identified from arbitrary matrices)."""
-    _by_label: dict = field(default_factory=dict, compare=False, repr=False)
-    _stack: np.ndarray = field(default=None, compare=False, repr=False)  # type: ignore[assignment]
+    _by_label: dict = field(init=False, compare=False, repr=False)
+    _stack: np.ndarray = field(init=False, compare=False, repr=False)
 
     def __post_init__(self) -> None:
         by_label = {op.label: op for op in self.operations}

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 import sympy
 
-from crystaltop.errors import UnknownGroupError
+from crystaltop.errors import CrystaltopError, ShapeError, UnknownGroupError
 from crystaltop.symmetry import CLASS_SYMBOLS, all_point_groups, normalize_symbol, point_group
 
 TYPES = ("1", "2", "3", "4", "6", "-1", "m", "-3", "-4", "-6")
@@ -186,3 +186,35 @@ def test_operations_and_matrices_are_read_only():
         op.spin[0, 0] = 2.0
     with pytest.raises(ValueError):
         point_group("4").matrices[0, 0, 0] = 2.0
+
+
+def test_a_secondary_direction_is_projected_into_the_plane_perpendicular_to_the_axis():
+    tilted = point_group("2/m", axis=(0, 0, 1), secondary=(1, 0, 5))
+    assert tilted.approx_equal(point_group("2/m"))
+    assert np.allclose(point_group("mm2", secondary=(1, 1, 3)).frame[:, 0], np.array([1, 1, 0]) / np.sqrt(2))
+
+
+def test_a_secondary_direction_along_the_axis_is_refused():
+    with pytest.raises(CrystaltopError, match="parallel"):
+        point_group("4mm", axis=(0, 0, 1), secondary=(0, 0, 2))
+
+
+@pytest.mark.parametrize("bad", [(0, 0, 0), (1, 0), (np.nan, 0, 1)])
+def test_a_malformed_axis_is_refused(bad):
+    with pytest.raises(ShapeError):
+        point_group("4mm", axis=bad)
+
+
+def test_a_label_depends_only_on_the_matrix_so_shared_operations_share_labels():
+    holohedries = [point_group("m-3m"), point_group("6/mmm")]
+    for symbol in CLASS_SYMBOLS:
+        for op in point_group(symbol):
+            big = next(h for h in holohedries if op.matrix in h)
+            assert big.find(op.matrix).label == op.label
+
+
+def test_the_labels_documented_in_the_operations_module_exist():
+    documented = {"2z", "4z+", "4z-", "3[111]+", "6z-", "mx", "mz", "m[-110]", "m(60°)", "-4z+", "-3[1-11]-", "-6z+",
+                  "2[110]", "2(30°)"}
+    present = {op.label for symbol in CLASS_SYMBOLS for op in point_group(symbol)}
+    assert documented <= present
