@@ -20,10 +20,10 @@ from crystaltop.errors import CrystaltopError, ShapeError, UnknownGroupError, Un
 
 from .axis_angle import check_orthogonal
 from .catalogue import CLASS_SYMBOLS, entry, normalize_symbol, settings_of, type_count_key
-from .closure import canonical, check_group_axioms, close_exactly, exact_matrix, exact_number, is_exact
+from .closure import canonical, check_group_axioms, close_exactly, exact_matrix, exact_number, is_exact, to_float
 from .lattice_basis import matrix_in_basis
 from .operations import Operation, make_operation
-from .spin import _sign_between
+from .spin import product_sign
 
 __all__ = ["PointGroup", "point_group", "all_point_groups"]
 
@@ -154,7 +154,7 @@ class PointGroup:
     def double_group_sign(self, a: OperationLike, b: OperationLike) -> int:
         """Sign ``s = ±1`` with ``spin(a) @ spin(b) == s * spin(a b)``."""
         op_a, op_b = self._resolve(a), self._resolve(b)
-        return _sign_between(op_a.spin @ op_b.spin, self.multiply(op_a, op_b).spin)
+        return product_sign(op_a.spin @ op_b.spin, self.multiply(op_a, op_b).spin)
 
     # -- queries ------------------------------------------------------------------------------
     @property
@@ -384,7 +384,7 @@ def _frame(axis: tuple[float, ...], secondary: tuple[float, ...]) -> tuple[sympy
     s_exact = s_exact - s_exact.dot(a_exact) * a_exact
     s_exact = (s_exact / sympy.sqrt(sympy.expand(s_exact.dot(s_exact)))).applyfunc(sympy.radsimp)
     q_exact = canonical(sympy.Matrix.hstack(s_exact, a_exact.cross(s_exact), a_exact))
-    if canonical(q_exact * q_exact.T) != sympy.eye(3) or np.abs(_to_array(q_exact) - q_float).max() > 1e-9:
+    if canonical(q_exact * q_exact.T) != sympy.eye(3) or np.abs(to_float(q_exact) - q_float).max() > 1e-9:
         return None, q_float
     return q_exact, q_float
 
@@ -395,7 +395,7 @@ def _conjugated(group: PointGroup, q_float: np.ndarray, q_exact: sympy.Immutable
         matrix = q_float @ op.matrix @ q_float.T
         if q_exact is not None and is_exact(op.exact):
             exact = canonical(q_exact * op.exact * q_exact.T)
-            ops.append(make_operation(exact, _to_array(exact)))
+            ops.append(make_operation(exact, to_float(exact)))
         else:
             ops.append(make_operation(exact_matrix(matrix, tol=0.0), matrix))
     index = {old.label: new.label for old, new in zip(group.operations, ops)}
@@ -511,12 +511,6 @@ def _unit(vector: Sequence[float], what: str) -> np.ndarray:
 def _as_direction(vector: Sequence[float], what: str) -> tuple[float, ...]:
     _unit(vector, what)  # validates
     return tuple(float(c) + 0.0 for c in np.asarray(vector, dtype=float))
-
-
-def _to_array(matrix: sympy.MatrixBase) -> np.ndarray:
-    arr = np.array(matrix.evalf(20).tolist(), dtype=float)
-    arr[np.abs(arr) < 1e-15] = 0.0
-    return arr
 
 
 def _readonly(arr: np.ndarray) -> np.ndarray:

@@ -23,7 +23,7 @@ import numpy as np
 
 from .axis_angle import axis_angle
 
-__all__ = ["PAULI", "spin_matrix", "su2_rotation", "double_group_sign"]
+__all__ = ["PAULI", "spin_matrix", "su2_rotation", "double_group_sign", "product_sign"]
 
 #: Pauli matrices σ_x, σ_y, σ_z, shape (3, 2, 2).
 PAULI = np.array(
@@ -67,10 +67,11 @@ def double_group_sign(rotation_a: np.ndarray, rotation_b: np.ndarray) -> int:
     """Sign ``s`` in ``U(a) U(b) = s U(ab)`` for Cartesian matrices ``a`` and ``b``."""
     a = np.asarray(rotation_a, dtype=float)
     b = np.asarray(rotation_b, dtype=float)
-    return _sign_between(spin_matrix(a) @ spin_matrix(b), spin_matrix(a @ b))
+    return product_sign(spin_matrix(a) @ spin_matrix(b), spin_matrix(a @ b))
 
 
-def _sign_between(product: np.ndarray, image: np.ndarray) -> int:
+def product_sign(product: np.ndarray, image: np.ndarray) -> int:
+    """Sign s = ±1 with product == s * image, for SU(2) matrices known to agree up to sign."""
     overlap = np.trace(image.conj().T @ product).real / 2.0
     sign = 1 if overlap > 0 else -1
     if not np.allclose(product, sign * image, atol=1e-8):  # pragma: no cover - SU(2) guarantees this
