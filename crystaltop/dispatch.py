@@ -204,7 +204,8 @@ def run_invariants(*, model, group, filling, time_reversal, bands, registry=None
         res = Result(name=name, title=title, status=OK, value=outcome.value, method=outcome.method,
                      mesh=outcome.mesh, smallest_gap=min(gaps) if gaps else None,
                      convergence=outcome.convergence, convergence_label=outcome.convergence_label,
-                     details=dict(outcome.details), notes=tuple(outcome.notes), seconds=time.perf_counter() - t0)
+                     details=dict(outcome.details), notes=tuple(outcome.notes), figures=dict(outcome.figures),
+                     seconds=time.perf_counter() - t0)
         if outcome.cross_check is not None:
             res = res.with_cross_check(outcome.cross_check)
         results[name] = res

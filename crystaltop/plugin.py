@@ -155,6 +155,9 @@ class Outcome:
     details: Mapping[str, Any] = field(default_factory=dict)
     #: notes for the reader, e.g. "quantised to 0 or 1/2 by inversion"
     notes: tuple = ()
+    #: figures: name -> function drawing on a matplotlib Axes (called only if matplotlib is installed, by
+    #: Report.save_figures); put a plain-text summary of the same data in ``details`` for readers without it
+    figures: Mapping[str, Any] = field(default_factory=dict)
 
 
 class Invariant:

@@ -84,6 +84,8 @@ class Result:
     message: str = ""
     #: wall time of its computation, seconds
     seconds: float = 0.0
+    #: name -> function drawing on a matplotlib Axes (not part of to_dict; see Report.save_figures)
+    figures: Mapping[str, Any] = field(default_factory=dict, repr=False, compare=False)
 
     @property
     def ok(self) -> bool:
@@ -152,6 +154,36 @@ class Report:
     @property
     def failed(self) -> tuple:
         return tuple(r for r in self if r.status == FAILED)
+
+    def save_figures(self, directory) -> dict:
+        """Draw every figure the invariants provide as PNG files in ``directory``; name -> path.
+
+        Returns an empty dict when matplotlib is not installed (the figures' data stay in each record's details).
+        """
+        try:
+            import matplotlib
+
+            matplotlib.use("Agg", force=False)
+            import matplotlib.pyplot as plt
+        except ImportError:
+            return {}
+        from pathlib import Path
+
+        out = {}
+        directory = Path(directory)
+        directory.mkdir(parents=True, exist_ok=True)
+        for r in self:
+            for fig_name, draw in r.figures.items():
+                fig, ax = plt.subplots(figsize=(4.5, 3.5))
+                try:
+                    draw(ax)
+                    fig.tight_layout()
+                    path = directory / f"{r.name}-{fig_name}.png"
+                    fig.savefig(path, dpi=120)
+                    out[f"{r.name}/{fig_name}"] = str(path)
+                finally:
+                    plt.close(fig)
+        return out
 
     def to_dict(self) -> dict:
         return {
