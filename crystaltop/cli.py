@@ -44,14 +44,16 @@ def _cmd_report(args) -> int:
 
     options = {"mesh": args.mesh} if args.mesh else None
     if args.demo:
-        from .examples.demo import demo_reports
+        from .examples.demo import demo_reports, verdict
 
-        texts = [_emit(r, args.format) for r in demo_reports(options=options)]
+        reports = demo_reports(options=options)
+        texts = [_emit(r, args.format) for r in reports]
         if args.format == "json":
             print("[" + ",\n".join(texts) + "]")
         else:
             print(("\n\n" if args.format == "text" else "\n").join(texts))
-        return 0
+            print("\nverdict:\n" + verdict(reports))
+        return 1 if args.strict and any(r.failed for r in reports) else 0
     if not args.file:
         print("crystaltop report: give a model file or --demo", file=sys.stderr)
         return 2
