@@ -219,6 +219,12 @@ class Context:
         res = self._results.get(name)
         return res if res is not None and res.status == "ok" else None
 
+    def record(self, name: str):
+        """The record of a declared invariant whatever its status (to explain why it cannot be used), or None."""
+        if name not in self._allowed:
+            raise KeyError(f"invariant result '{name}' was not declared in uses/optional_uses")
+        return self._results.get(name)
+
     def option(self, key: str, default=None):
         return self.options.get(key, default)
 

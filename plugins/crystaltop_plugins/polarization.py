@@ -78,7 +78,9 @@ class Polarization(Invariant):
         if dim >= 2:
             chern = context.result("chern")
             if chern is None:
-                raise NotApplicable("the Chern number is not known (chern did not succeed), so P is not defined")
+                rec = context.record("chern")
+                why = f"chern {rec.status}: {rec.message}" if rec is not None else "chern is not installed"
+                raise NotApplicable(f"needs a vanishing Chern number, which is not known ({why})")
             if np.any(np.asarray(chern.value) != 0):
                 raise NotApplicable(f"Chern number {chern.value} is not zero: the polarization is not defined")
         n = int(context.option("mesh", {1: 96, 2: 48, 3: 24}[dim]))
