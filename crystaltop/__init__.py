@@ -21,7 +21,7 @@ _EXPORTS = {
     "point_group": "symmetry", "point_group_of": "symmetry", "space_group_of": "symmetry",
     "all_point_groups": "symmetry", "PointGroup": "symmetry", "Operation": "symmetry",
     "LatticeModel": "models", "BlochFunction": "models", "BlochModel": "models",
-    "classify": "classify", "applicable_invariants": "dispatch", "applicability": "dispatch",
+    "classify": "classification", "applicable_invariants": "dispatch", "applicability": "dispatch",
     "InvariantRegistry": "dispatch", "default_registry": "dispatch",
     "Report": "report", "Result": "report",
 }

@@ -40,7 +40,7 @@ def _emit(report, fmt: str) -> str:
 
 
 def _cmd_report(args) -> int:
-    from .classify import classify
+    from .classification import classify
 
     options = {"mesh": args.mesh} if args.mesh else None
     if args.demo:

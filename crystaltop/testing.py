@@ -110,7 +110,7 @@ def _only(invariant, registry):
 
 
 def _classify(invariant, probe: Probe, model, registry=None, **kw):
-    from .classify import classify
+    from .classification import classify
 
     report = classify(model, group=probe.group, filling=probe.filling, time_reversal=probe.time_reversal,
                       invariants=[invariant.name], registry=_only(invariant, registry), **kw)

@@ -60,7 +60,7 @@ DESIGNS = {
 
 def demo_reports(options=None) -> list:
     """Reports on both designs, lowest band filled."""
-    from ..classify import classify
+    from ..classification import classify
 
     return [classify(resonator_array(**kwargs), group=group, filling=1, options=options)
             for kwargs, group in DESIGNS.values()]
