@@ -173,6 +173,19 @@ class BlochFunction(BlochModel):
         """The operations whose representations were given (not the composed ones)."""
         return tuple(op for op, _ in self._given)
 
+    def generated_group(self) -> PointGroup | None:
+        """The group of the representations: ``group`` if given, else the one the given operations generate.
+
+        Returns None when no representation was given.
+        """
+        if self.group is not None:
+            return self.group
+        if not self._given:
+            return None
+        if self._words is None:
+            self._words = self._close()
+        return PointGroup.from_matrices(list(self._closure_matrices.values()))
+
     def time_reversal_matrix(self) -> np.ndarray | None:
         return None if self._time_reversal is None else self._time_reversal.copy()
 
@@ -268,13 +281,14 @@ class BlochFunction(BlochModel):
         word = self._words.get(_matrix_key(target))
         if word is None:  # a rounding boundary between equal matrices: compare with a tolerance
             for key, candidate in self._words.items():
-                if np.abs(np.frombuffer(key).reshape(3, 3) - target).max() < 1e-6:
+                if np.abs(self._closure_matrices[key] - target).max() < 1e-6:
                     return candidate
         return word
 
     def _close(self) -> dict[bytes, tuple[int, ...]]:
         """Breadth-first closure of the given operations: matrix key -> shortest word (a given one: itself)."""
         words: dict[bytes, tuple[int, ...]] = {_matrix_key(np.eye(3)): ()}
+        self._closure_matrices = {_matrix_key(np.eye(3)): np.eye(3)}
         frontier = [np.eye(3)]
         generators = [np.asarray(gen.matrix, dtype=float) for gen, _ in self._given]
         while frontier:
@@ -286,6 +300,7 @@ class BlochFunction(BlochModel):
                     key = _matrix_key(product)
                     if key not in words:
                         words[key] = (index,) + word
+                        self._closure_matrices[key] = product
                         grown.append(product)
             frontier = grown
             if len(words) > 48:

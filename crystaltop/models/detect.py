@@ -32,11 +32,9 @@ def _candidates(model) -> tuple:
         group = site_symmetry_group(model.lattice, positions, [codes[sp] for sp in species])
         return tuple(group.operations)
     if isinstance(model, BlochFunction):
-        if model.group is not None:
-            return tuple(model.group.operations)
-        if model.operations:
-            matrices = [np.frombuffer(key).reshape(3, 3) for key in model._close()]
-            return tuple(PointGroup.from_matrices(matrices).operations)
+        group = model.generated_group()
+        if group is not None:
+            return tuple(group.operations)
     return tuple(point_group("1").operations)
 
 

@@ -162,3 +162,18 @@ def test_a_bare_callable_has_no_real_space_form():
     f = BlochFunction(two_band, lattice=np.eye(2), positions=np.zeros((2, 2)))
     with pytest.raises(CrystaltopError, match="no real-space"):
         f.hopping_blocks()
+
+
+def test_a_spinful_model_given_only_generators_reproduces_every_matrix_of_the_builder():
+    # the closure with the double-group sign fixed by op.spin, on the 24 operations of 6/mmm
+    from crystaltop.examples import kane_mele
+
+    model = kane_mele(rashba=0.0)
+    group = point_group("6/mmm")
+    gens = {group[label]: (lambda k, _op=group[label]: model.symmetry_matrix(_op, k)) for label in group.generators}
+    f = BlochFunction(model.hamiltonian, lattice=model.lattice, positions=model.positions, spinful=True,
+                      representations=gens)
+    assert f.generated_group().symbol == "6/mmm"
+    ks = np.random.default_rng(6).random((3, 2))
+    for op in group:
+        assert np.allclose(f.symmetry_matrix(op, ks), model.symmetry_matrix(op, ks)), op.label
