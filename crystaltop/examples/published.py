@@ -51,7 +51,7 @@ _ID2 = np.eye(2, dtype=complex)
 
 
 # ---------------------------------------------------------------------------------------------- geometry helpers
-def _bonds(lattice, positions, distance, *, tol: float = 1e-6, reach: int = 2):
+def _bonds_of_length(lattice, positions, distance, *, tol: float = 1e-6, reach: int = 2):
     """Directed bonds of one length: targets ``i``, sources ``j``, source cells and Cartesian vectors ``j -> i``.
 
     The bond runs from site ``j`` in cell ``cell`` to site ``i`` in the home cell; the vector is
@@ -72,7 +72,7 @@ def _two_step_paths(lattice, positions, first, second, *, tol: float = 1e-6):
 
     Returns targets, sources, source cells and the two bond vectors ``d1 = r_m − r_j``, ``d2 = r_i − r_m``.
     """
-    t, s, cell, vec = _bonds(lattice, positions, first, tol=tol)
+    t, s, cell, vec = _bonds_of_length(lattice, positions, first, tol=tol)
     a, b = np.nonzero(t[:, None] == s[None, :])  # bond a: m <- j, then bond b: i <- m
     total = vec[a] + vec[b]
     keep = np.abs(np.linalg.norm(total, axis=-1) - second) < tol
@@ -167,7 +167,7 @@ def qi_wu_zhang(m: float = 1.0, *, encoding: str = "orbital") -> BlochModel:
     isometry[1, 1], isometry[2, 1] = 1.0 / np.sqrt(2.0), -1j / np.sqrt(2.0)
     group = point_group("4/m")
     reps = _projected_representations(group, ["s", "px", "py"], isometry, spinful=False)
-    return BlochFunction.from_hoppings(cells, blocks, lattice=np.eye(2), positions=np.zeros((2, 2)),
+    return BlochFunction.from_real_space(cells, blocks, lattice=np.eye(2), positions=np.zeros((2, 2)),
                                        representations=reps, group=group, name=f"Qi-Wu-Zhang, m={m:g}")
 
 
@@ -184,7 +184,7 @@ def _honeycomb_paths(model):
     ``ν = ±1`` of each path is the sign of ``(d1 × d2)_z``: +1 when the hop turns counter-clockwise.
     """
     pos = model.positions[:: (2 if model.spinful else 1)]
-    i, j, cells, vec = _bonds(model.lattice, pos, 1.0 / _SQ3)
+    i, j, cells, vec = _bonds_of_length(model.lattice, pos, 1.0 / _SQ3)
     keep = _once(i, j, cells)
     nn = (i[keep], j[keep], cells[keep], vec[keep])
     i2, j2, cells2, d1, d2 = _two_step_paths(model.lattice, pos, 1.0 / _SQ3, 1.0)
@@ -299,7 +299,7 @@ def bernevig_hughes_zhang(a: float = 1.0, b: float = 1.0, m: float = 2.0) -> Blo
     group = point_group("4/mmm")
     reps = _projected_representations(group, ["s", "px", "py"], isometry, spinful=True)
     u_t = isometry.conj().T @ time_reversal_matrix(3, True) @ isometry.conj()
-    return BlochFunction.from_hoppings(cells, blocks, lattice=np.eye(2), positions=np.zeros((4, 2)), spinful=True,
+    return BlochFunction.from_real_space(cells, blocks, lattice=np.eye(2), positions=np.zeros((4, 2)), spinful=True,
                                        representations=reps, group=group, time_reversal=u_t,
                                        name=f"BHZ, A={a:g}, B={b:g}, M={m:g}")
 
@@ -326,7 +326,7 @@ def c4_breathing_square(gamma: float = 0.5, lam: float = 1.0) -> LatticeModel:
     """
     model = LatticeModel(np.eye(2), name=f"C4 breathing square, gamma={gamma:g}, lambda={lam:g}")
     _square_corners(model, [(0.25, 0.25), (-0.25, 0.25), (-0.25, -0.25), (0.25, -0.25)])
-    i, j, cells, _ = _bonds(model.lattice, model.positions, 0.5)
+    i, j, cells, _ = _bonds_of_length(model.lattice, model.positions, 0.5)
     keep = _once(i, j, cells)
     for p, q, r in zip(i[keep], j[keep], cells[keep]):
         model.add_hopping(-(lam if np.any(r) else gamma), int(p), int(q), r)
@@ -358,7 +358,7 @@ def benalcazar_bernevig_hughes(gamma: float = 0.5, lam: float = 1.0) -> BlochFun
     -------
     BlochFunction
         Four states, filling 2, ``U_T = 1`` (real hoppings), group ``4mm``; wraps the :class:`LatticeModel` of the
-        bonds, so :meth:`~BlochFunction.hopping_blocks` gives the real-space form.
+        bonds, so :meth:`~BlochFunction.real_space_blocks` gives the real-space form.
     """
     lattice_model = LatticeModel(np.eye(2), name=f"BBH quadrupole, gamma={gamma:g}, lambda={lam:g}")
     _square_corners(lattice_model, [(0.25, 0.25), (-0.25, -0.25), (-0.25, 0.25), (0.25, -0.25)])
@@ -435,7 +435,7 @@ def fu_kane_mele(t: float = 1.0, soc: float = 0.125, dt: float = 0.4, *, frame: 
     model.add_site([0.125] * 3, "s")
     pos = model.positions[::2]
     nn = np.sqrt(3.0) / 4.0
-    i, j, cells, vec = _bonds(lattice, pos, nn)
+    i, j, cells, vec = _bonds_of_length(lattice, pos, nn)
     keep = _once(i, j, cells)
     for p, q, r, d in zip(i[keep], j[keep], cells[keep], vec[keep]):
         along_bond = not np.any(r)  # the bond inside the cell is the [111] one
@@ -483,7 +483,7 @@ def stacked_layers(layer: BlochModel, tz: float = 0.1, *, spacing: float = 1.0, 
             model.add_site(np.append(site.position, 0.0), site.kinds, label=site.label)
         for orbital, block in layer.onsite_terms.items():
             model.set_onsite(orbital, block if layer.spinful else block[0, 0].real)
-        for bond in layer.hoppings:
+        for bond in layer.bonds:
             model.add_hopping(bond.value, bond.target, bond.source, tuple(bond.cell) + (0,))
         for orbital in range(layer.n_orbitals):
             model.add_hopping(tz, orbital, orbital, (0, 0, 1))

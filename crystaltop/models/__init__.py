@@ -17,7 +17,7 @@ from .base import BlochModel
 from .bloch_function import BlochFunction
 from .checks import check_hermitian, check_symmetric, symmetry_violations
 from .detect import detect_point_group
-from .lattice_model import Hopping, LatticeModel, Site
+from .lattice_model import Bond, LatticeModel, Site
 from .symmetrize import symmetrized
 from .transformed import TransformedModel
 
@@ -27,7 +27,7 @@ __all__ = [
     "BlochFunction",
     "TransformedModel",
     "Site",
-    "Hopping",
+    "Bond",
     "check_hermitian",
     "symmetry_violations",
     "check_symmetric",

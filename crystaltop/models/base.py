@@ -247,7 +247,7 @@ class BlochModel(abc.ABC):
 
         return TransformedModel(self, shifts=shifts)
 
-    def hopping_blocks(self) -> tuple[np.ndarray, np.ndarray]:
+    def real_space_blocks(self) -> tuple[np.ndarray, np.ndarray]:
         """Real-space form ``H(k) = Σ_m exp(2πi k·R_m) h_m`` where the model has one.
 
         Returns

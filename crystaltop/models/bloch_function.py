@@ -34,13 +34,14 @@ class BlochFunction(BlochModel):
     h : callable or BlochModel
         ``h(k)`` maps reduced momenta ``(..., dim)`` to ``(..., n, n)`` (batched numpy). A :class:`BlochModel`
         is accepted too: its Hamiltonian, lattice, positions, spin and basis are taken over (and its real-space
-        form, :meth:`hopping_blocks`), while the representations given here replace its own.
+        form, :meth:`real_space_blocks`), while the representations given here replace its own.
     lattice : (dim, dim) array_like
         Lattice vectors as rows. Taken from ``h`` if it is a model.
     positions : (n, dim) array_like
         Reduced position of each site-localised basis state; ``n`` fixes the size of ``H``.
-    spinful : bool
-        Whether the basis is orbital-major, spin-minor with a spin-1/2 per orbital.
+    spinful : bool, optional
+        Whether the basis is orbital-major, spin-minor with a spin-1/2 per orbital (default: that of ``h`` if it
+        is a model, else False).
     representations : mapping, optional
         ``{operation or label: D}`` with ``D`` a constant ``(n, n)`` unitary or a callable ``k -> (..., n, n)``
         giving ``D_g(k)``. Labels need ``group``. A generating set is enough: the other elements are composed
@@ -58,7 +59,7 @@ class BlochFunction(BlochModel):
     Raises
     ------
     ShapeError
-        On first use, if ``h(k)`` does not return shape ``(..., n, n)``; at construction, for a wrongly shaped
+        When called, if ``h(k)`` does not return shape ``(..., n, n)``; at construction, for a wrongly shaped
         position array, representation or ``U_T``.
     UnknownOperationError
         If a label is not in ``group``, or the given representations do not generate ``group``.
@@ -108,8 +109,8 @@ class BlochFunction(BlochModel):
         self.group = group
         self._time_reversal = self._resolve_time_reversal(time_reversal)
         self._given = self._resolve_representations(representations or {}, group)
-        self._words: list[tuple[np.ndarray, tuple[int, ...]]] | None = None
-        self._checked_shape = False
+        self._words: dict[bytes, tuple[int, ...]] | None = None  # filled by _close on first need
+        self._closure_matrices: dict[bytes, np.ndarray] = {}
         if group is not None:
             missing = [op.label for op in group.operations if self._word_for(op) is None]
             if missing:
@@ -120,7 +121,7 @@ class BlochFunction(BlochModel):
 
     # ------------------------------------------------------------------ alternative constructor
     @classmethod
-    def from_hoppings(cls, cells, blocks, *, lattice, positions, **options) -> "BlochFunction":
+    def from_real_space(cls, cells, blocks, *, lattice, positions, **options) -> "BlochFunction":
         """A model from its real-space form ``H(k) = Σ_m exp(2πi k·cells[m]) blocks[m]``.
 
         Parameters
@@ -189,13 +190,13 @@ class BlochFunction(BlochModel):
     def time_reversal_matrix(self) -> np.ndarray | None:
         return None if self._time_reversal is None else self._time_reversal.copy()
 
-    def hopping_blocks(self) -> tuple[np.ndarray, np.ndarray]:
+    def real_space_blocks(self) -> tuple[np.ndarray, np.ndarray]:
         blocks = getattr(self, "_blocks", None)
         if blocks is not None:
             return blocks[0].copy(), blocks[1].copy()
         if self._source is not None:
-            return self._source.hopping_blocks()
-        return super().hopping_blocks()
+            return self._source.real_space_blocks()
+        return super().real_space_blocks()
 
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         out = np.asarray(self._h(k))

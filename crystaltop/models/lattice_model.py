@@ -17,7 +17,7 @@ from ..errors import CrystaltopError, LatticeMismatchError, NonHermitianError, S
 from ..symmetry import expand_kinds, orbital_block, time_reversal_matrix
 from .base import BlochModel, as_lattice
 
-__all__ = ["LatticeModel", "Site", "Hopping"]
+__all__ = ["LatticeModel", "Site", "Bond"]
 
 #: Two reduced positions closer than this (modulo the lattice) are the same point.
 POSITION_TOL = 1e-6
@@ -41,7 +41,7 @@ class Site:
 
 
 @dataclass(frozen=True, eq=False)
-class Hopping:
+class Bond:
     """One bond term ``value · c†_{target, R=0} c_{source, R=cell}`` (its Hermitian conjugate is implied)."""
 
     target: int
@@ -90,6 +90,10 @@ class LatticeModel(BlochModel):
     (2, 2, 2)
     """
 
+    #: H(k) is Hermitian by construction (Hermitian onsite terms, every bond with its conjugate), so band data
+    #: need not test it again on every mesh
+    hermitian_by_construction = True
+
     def __init__(self, lattice, *, spinful: bool = False, name: str | None = None):
         self.lattice = as_lattice(lattice)
         self.dim = int(self.lattice.shape[0])
@@ -97,7 +101,7 @@ class LatticeModel(BlochModel):
         self.name = name
         self.basis = None
         self._sites: list[Site] = []
-        self._hoppings: list[Hopping] = []
+        self._bonds: list[Bond] = []
         self._onsite: dict[int, np.ndarray] = {}
         self._orbital_kinds: list[str] = []
         self._orbital_site: list[int] = []
@@ -209,7 +213,7 @@ class LatticeModel(BlochModel):
             raise CrystaltopError(f"a hop from orbital {oi} to itself in the home cell is an onsite term: use set_onsite")
         block = self._spin_block(value, f"hopping {oi} <- {oj}")
         stored = block[0, 0] if not self.spinful else block
-        self._hoppings.append(Hopping(oi, oj, shift, stored))
+        self._bonds.append(Bond(oi, oj, shift, stored))
         self._reset_caches()
 
     # ------------------------------------------------------------------ accessors
@@ -243,9 +247,9 @@ class LatticeModel(BlochModel):
         return self.n_orbitals * (2 if self.spinful else 1)
 
     @property
-    def hoppings(self) -> tuple[Hopping, ...]:
+    def bonds(self) -> tuple[Bond, ...]:
         """The bond terms as added (Hermitian conjugates implied)."""
-        return tuple(self._hoppings)
+        return tuple(self._bonds)
 
     @property
     def onsite_terms(self) -> dict[int, np.ndarray]:
@@ -265,7 +269,7 @@ class LatticeModel(BlochModel):
             self._positions = pos
         return self._positions
 
-    def hopping_blocks(self) -> tuple[np.ndarray, np.ndarray]:
+    def real_space_blocks(self) -> tuple[np.ndarray, np.ndarray]:
         """Real-space blocks: ``H(k) = Σ_m exp(2πi k·cells[m]) blocks[m]`` (Hermitian conjugates included).
 
         Returns
@@ -299,11 +303,11 @@ class LatticeModel(BlochModel):
             return self._stack
         n, s, dim = self.n_states, (2 if self.spinful else 1), self.dim
         home = np.zeros((1, dim), dtype=int)
-        if self._hoppings:
-            tgt = np.array([h.target for h in self._hoppings], dtype=int)
-            src = np.array([h.source for h in self._hoppings], dtype=int)
-            cell = np.array([h.cell for h in self._hoppings], dtype=int).reshape(-1, dim)
-            val = np.array([np.asarray(h.value, dtype=complex).reshape(s, s) for h in self._hoppings])
+        if self._bonds:
+            tgt = np.array([h.target for h in self._bonds], dtype=int)
+            src = np.array([h.source for h in self._bonds], dtype=int)
+            cell = np.array([h.cell for h in self._bonds], dtype=int).reshape(-1, dim)
+            val = np.array([np.asarray(h.value, dtype=complex).reshape(s, s) for h in self._bonds])
         else:
             tgt = src = np.zeros(0, dtype=int)
             cell = np.zeros((0, dim), dtype=int)
@@ -315,7 +319,7 @@ class LatticeModel(BlochModel):
         index = np.argsort(order)[index]
         blocks = np.zeros((len(cells), n, n), dtype=complex)
         spin = np.arange(s)
-        t = len(self._hoppings)
+        t = len(self._bonds)
         if t:
             rows = (tgt[:, None] * s + spin)  # (t, s)
             cols = (src[:, None] * s + spin)
@@ -425,4 +429,4 @@ class LatticeModel(BlochModel):
         name = f"{self.name!r}, " if self.name else ""
         spin = ", spinful" if self.spinful else ""
         return (f"LatticeModel({name}{self.dim}D, {len(self._sites)} sites, {self.n_orbitals} orbitals, "
-                f"{len(self._hoppings)} bonds{spin})")
+                f"{len(self._bonds)} bonds{spin})")

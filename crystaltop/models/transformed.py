@@ -129,8 +129,8 @@ class TransformedModel(BlochModel):
         gk = np.asarray(op.acts_on_k(k, self.lattice), dtype=float)
         return self._conjugate(gk, d, k)
 
-    def hopping_blocks(self) -> tuple[np.ndarray, np.ndarray]:
-        cells, blocks = self.parent.hopping_blocks()
+    def real_space_blocks(self) -> tuple[np.ndarray, np.ndarray]:
+        cells, blocks = self.parent.real_space_blocks()
         if self._rotation is not None:
             q = self._rotation
             return cells, q.conj().T @ blocks @ q

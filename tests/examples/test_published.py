@@ -341,7 +341,7 @@ def test_bbh_occupied_rotation_eigenvalues_at_gamma_and_m(gamma, same):
 
 
 def test_bbh_keeps_its_real_space_bonds():
-    cells, blocks = benalcazar_bernevig_hughes(0.5, 1.0).hopping_blocks()
+    cells, blocks = benalcazar_bernevig_hughes(0.5, 1.0).real_space_blocks()
     home = blocks[np.flatnonzero(~cells.any(axis=1))[0]]
     assert np.allclose(home[1, 2], -0.5) and np.allclose(home[0, 2], 0.5)  # the π-flux bond carries −γ
 

@@ -140,28 +140,28 @@ def test_wrapping_a_lattice_model_keeps_its_real_space_form_and_replaces_its_rep
     model.add_hopping(0.4, 0, 1)
     f = BlochFunction(model, representations={"4z+": np.eye(2)}, group=point_group("4"))
     assert f.lattice is not None and f.n_states == 2
-    cells, blocks = f.hopping_blocks()
-    assert np.allclose(blocks, model.hopping_blocks()[1]) and np.array_equal(cells, model.hopping_blocks()[0])
+    cells, blocks = f.real_space_blocks()
+    assert np.allclose(blocks, model.real_space_blocks()[1]) and np.array_equal(cells, model.real_space_blocks()[0])
     assert np.allclose(f.symmetry_matrix(point_group("4")["4z+"], [0.1, 0.1]), np.eye(2))
 
 
-def test_from_hoppings_sums_the_blocks_and_refuses_a_non_hermitian_set():
+def test_from_real_space_sums_the_blocks_and_refuses_a_non_hermitian_set():
     cells = [(0, 0), (1, 0), (-1, 0)]
     hop = (SZ - 1j * SX) / 2
-    f = BlochFunction.from_hoppings(cells, [0.5 * SZ, hop, hop.conj().T], lattice=np.eye(2),
+    f = BlochFunction.from_real_space(cells, [0.5 * SZ, hop, hop.conj().T], lattice=np.eye(2),
                                     positions=np.zeros((2, 2)))
     k = np.array([[0.2, 0.7]])
     kx = 2 * np.pi * 0.2
     assert np.allclose(f.hamiltonian(k)[0], np.sin(kx) * SX + (0.5 + np.cos(kx)) * SZ)
-    assert np.array_equal(f.hopping_blocks()[0], np.array(cells))
+    assert np.array_equal(f.real_space_blocks()[0], np.array(cells))
     with pytest.raises(NonHermitianError, match=r"R = \(1, 0\)"):
-        BlochFunction.from_hoppings(cells, [0.5 * SZ, hop, hop], lattice=np.eye(2), positions=np.zeros((2, 2)))
+        BlochFunction.from_real_space(cells, [0.5 * SZ, hop, hop], lattice=np.eye(2), positions=np.zeros((2, 2)))
 
 
 def test_a_bare_callable_has_no_real_space_form():
     f = BlochFunction(two_band, lattice=np.eye(2), positions=np.zeros((2, 2)))
     with pytest.raises(CrystaltopError, match="no real-space"):
-        f.hopping_blocks()
+        f.real_space_blocks()
 
 
 def test_a_spinful_model_given_only_generators_reproduces_every_matrix_of_the_builder():

@@ -23,7 +23,7 @@ def _by_hand(model: LatticeModel, k: np.ndarray) -> np.ndarray:
     out = np.zeros((model.n_states, model.n_states), dtype=complex)
     for orbital, block in model.onsite_terms.items():
         out[orbital * s:(orbital + 1) * s, orbital * s:(orbital + 1) * s] += block
-    for bond in model.hoppings:
+    for bond in model.bonds:
         value = np.asarray(bond.value, dtype=complex).reshape(s, s)
         phase = np.exp(2j * np.pi * np.dot(k, bond.cell))
         i, j = bond.target * s, bond.source * s
@@ -116,12 +116,12 @@ def test_orbital_shells_expand_in_the_documented_order():
     assert model.sites[1].kinds == ("dxy", "dyz", "dzx", "dx2-y2", "dz2")
 
 
-def test_hopping_blocks_reproduce_h_and_put_the_home_cell_first():
+def test_real_space_blocks_reproduce_h_and_put_the_home_cell_first():
     model = LatticeModel(np.eye(2))
     model.add_site([0, 0], "s px")
     model.set_onsite(0, 1.5)
     model.add_hopping(0.2 + 0.1j, 0, 1, [1, 1])
-    cells, blocks = model.hopping_blocks()
+    cells, blocks = model.real_space_blocks()
     assert not cells[0].any()
     k = np.array([0.3, 0.8])
     assert np.allclose(np.einsum("m,mij->ij", np.exp(2j * np.pi * cells @ k), blocks), model.hamiltonian(k))

@@ -47,7 +47,7 @@ def test_rewrapping_keeps_the_spectrum_and_moves_the_positions(model, seed):
     # the k-dependent phase: H'_ab(k) = e^{2πi k·(n_a − n_b)} H_ab(k)
     phase = np.exp(2j * np.pi * (ks @ shifts.T))
     assert np.allclose(moved.hamiltonian(ks), phase[:, :, None] * model.hamiltonian(ks) * np.conj(phase[:, None, :]))
-    cells, blocks = moved.hopping_blocks()
+    cells, blocks = moved.real_space_blocks()
     assert np.allclose(np.einsum("km,mij->kij", np.exp(2j * np.pi * ks @ cells.T), blocks), moved.hamiltonian(ks))
 
 
