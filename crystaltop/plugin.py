@@ -27,7 +27,7 @@ from typing import Any, Mapping
 
 import pluggy
 
-from .bands import BandData
+from .bands import BandData, batched_det
 from .errors import NotApplicable
 from .kspace import Grid, line, plane, trims, uniform_mesh
 
@@ -43,6 +43,7 @@ __all__ = [
     "Context",
     "NotApplicable",
     "BandData",
+    "batched_det",
     "Grid",
     "uniform_mesh",
     "plane",

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["ordered_product", "link_matrices", "unitary_part"]
+__all__ = ["ordered_product", "link_matrices", "unitary_part", "batched_det"]
 
 
 def ordered_product(mats: np.ndarray, axis: int) -> np.ndarray:
@@ -60,3 +60,13 @@ def unitary_part(mats: np.ndarray) -> np.ndarray:
     """The closest unitary matrix to each matrix (polar decomposition via SVD), batched."""
     u, _, vh = np.linalg.svd(mats)
     return u @ vh
+
+
+def batched_det(mats: np.ndarray) -> np.ndarray:
+    """Determinants of a stack of small matrices (closed forms for 1x1 and 2x2, LU otherwise)."""
+    m = mats.shape[-1]
+    if m == 1:
+        return mats[..., 0, 0].copy()
+    if m == 2:
+        return mats[..., 0, 0] * mats[..., 1, 1] - mats[..., 0, 1] * mats[..., 1, 0]
+    return np.linalg.det(mats)

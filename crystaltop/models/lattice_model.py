@@ -289,7 +289,9 @@ class LatticeModel(BlochModel):
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         cells, blocks = self._stacked()
         n = self.n_states
-        phases = np.exp(2j * np.pi * (k @ cells.T.astype(float)))  # (..., m)
+        flat = k.reshape(-1, k.shape[-1])
+        phases = np.exp(2j * np.pi * (flat @ cells.T.astype(float)))  # (points, m)
+        # one 2D product (a 3D-by-2D matmul loops over the leading axis in small pieces)
         return (phases @ blocks.reshape(len(cells), n * n)).reshape(k.shape[:-1] + (n, n))
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from crystaltop.plugin import Invariant, Outcome, Requirements, hookimpl, plane, uniform_mesh
+from crystaltop.plugin import Invariant, Outcome, Requirements, batched_det, hookimpl, plane, uniform_mesh
 from crystaltop.errors import MeshTooCoarseError
 
 #: largest plaquette phase accepted, in units of π (the method is exact below 1; this leaves a wide margin)
@@ -19,8 +19,8 @@ CONVERGED = 0.35
 
 def plaquette_phases(links1: np.ndarray, links2: np.ndarray) -> np.ndarray:
     """F(k) on a periodic 2D mesh from the link matrices along its two axes (leading two dimensions)."""
-    u1 = np.linalg.det(links1)
-    u2 = np.linalg.det(links2)
+    u1 = batched_det(links1)
+    u2 = batched_det(links2)
     u1 = u1 / np.abs(u1)
     u2 = u2 / np.abs(u2)
     return np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
