@@ -69,3 +69,20 @@ def test_three_dimensional_chern_numbers_per_family_of_planes():
     res = ct.classify(stacked_layers(qi_wu_zhang(m=1.0), 0.0), group="1", filling=1,
                       invariants=["chern"])["chern"]
     assert res.status == "ok" and tuple(res.value) == (0, 0, -1)
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+from crystaltop.testing import random_unitary  # noqa: E402
+
+
+@settings(max_examples=12, deadline=None)
+@given(seed=st.integers(0, 2**31 - 1), which=st.sampled_from(["qwz", "haldane"]))
+def test_chern_number_is_unchanged_by_random_basis_changes_and_k_dependent_phases(seed, which):
+    # Qi–Wu–Zhang m = 1 (C = -1, Phys. Rev. B 74, 085308 (2006)); Haldane phi = pi/2, M = 0 (C = -1, PRL 61, 2015)
+    model, group = (qi_wu_zhang(m=1.0), "4/m") if which == "qwz" else (haldane(), "6/m")
+    rng = np.random.default_rng(seed)
+    rotated = model.with_basis(random_unitary(model.n_states, rng))
+    rewrapped = rotated.rewrapped(rng.integers(-3, 4, size=(model.n_states, 2)))
+    res = ct.classify(rewrapped, group=group, filling=1, invariants=["chern"], gauge_seed=seed)["chern"]
+    assert res.status == "ok" and res.value == -1
