@@ -25,25 +25,17 @@ from typing import Any, Callable
 import numpy as np
 
 from .dispatch import InvariantRegistry, default_registry
+from .examples.published import PublishedModel
 from .plugin import Invariant, Requirements, hookimpl
 
 __all__ = ["Probe", "PROBES", "ConformanceCase", "conformance_cases", "run_case", "pytest_params",
            "values_equal", "random_unitary", "KNOWN_FAILURES", "CHECKS"]
 
 
-@dataclass(frozen=True)
-class Probe:
-    """A published model used to exercise invariants: how to build it gapped and gapless, and its symmetry."""
-
-    name: str
-    build: Callable[[], Any]
-    group: str
-    filling: int
-    dim: int
-    time_reversal: bool
-    spinful: bool
-    #: a parameter choice of the same model where the gap closes on the default meshes (None: not available)
-    gapless: Callable[[], Any] | None = None
+#: A probe model: one parameter point of a published model with its group, filling, dimension, time reversal,
+#: spin and (optionally) a gapless parameter point. The catalogue of :mod:`crystaltop.examples.published`
+#: defines the record; the conformance checks read the same fields.
+Probe = PublishedModel
 
 
 def _probes() -> tuple[Probe, ...]:

@@ -13,14 +13,10 @@ import numpy as np
 
 from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
 from ..kspace import Grid
+from ..models.base import format_k
 from .products import link_matrices, ordered_product
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
-
-
-def format_k(k) -> str:
-    """A k-point as text, e.g. ``'(0.500, 0.000)'``."""
-    return "(" + ", ".join(f"{float(x):.3f}" for x in np.atleast_1d(k)) + ")"
 
 
 @dataclass

@@ -29,8 +29,8 @@ _UNITARY_TOL = 1e-8
 
 
 def format_k(k) -> str:
-    """A reduced momentum as text with two decimals, e.g. ``'(0.12, 0.70)'``."""
-    return "(" + ", ".join(f"{float(x):.2f}" for x in np.atleast_1d(np.asarray(k, dtype=float))) + ")"
+    """A reduced momentum as text with three decimals, e.g. ``'(0.125, 0.700)'``."""
+    return "(" + ", ".join(f"{float(x):.3f}" for x in np.atleast_1d(np.asarray(k, dtype=float))) + ")"
 
 
 def as_lattice(lattice) -> np.ndarray:

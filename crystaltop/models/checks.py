@@ -152,7 +152,7 @@ def check_symmetric(model, group, time_reversal: bool = False, tol: float = 1e-8
     Raises
     ------
     SymmetryBreakingError
-        ``"the model breaks 4z+ of group 4mm: ||D H(k) D† − H(gk)|| = 0.31 ||H|| at k=(0.12, 0.70)"``, naming
+        ``"the model breaks 4z+ of group 4mm: ||D H(k) D† − H(gk)|| = 0.31 ||H|| at k=(0.125, 0.700)"``, naming
         the worst operation, the size of its violation (relative to ``||H||``) and where it occurs.
     """
     details = violation_details(model, group, time_reversal=time_reversal, samples=samples, seed=seed)

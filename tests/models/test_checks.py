@@ -89,7 +89,7 @@ def test_a_non_hermitian_callable_is_refused_naming_the_k_point_and_the_size():
         return out
 
     f = BlochFunction(h, lattice=np.eye(2), positions=np.zeros((2, 2)))
-    with pytest.raises(NonHermitianError, match=r"H\(k\) is not Hermitian at k=\(0\.25, 0\.50\): \|H - H†\| = 7\.1e-01"):
+    with pytest.raises(NonHermitianError, match=r"H\(k\) is not Hermitian at k=\(0\.250, 0\.500\): \|H - H†\| = 7\.1e-01"):
         check_hermitian(f, [[0.25, 0.5]])
 
 
