@@ -23,7 +23,7 @@ _EXPORTS = {
     "LatticeModel": "models", "BlochFunction": "models", "BlochModel": "models",
     "classify": "classification", "applicable_invariants": "dispatch", "applicability": "dispatch",
     "InvariantRegistry": "dispatch", "default_registry": "dispatch",
-    "Report": "report", "Result": "report",
+    "Report": "report", "Result": "report", "sweep": "sweep", "SweepTable": "sweep",
 }
 
 
@@ -60,5 +60,7 @@ __all__ = [
     "default_registry",
     "Report",
     "Result",
+    "sweep",
+    "SweepTable",
     "errors",
 ]
