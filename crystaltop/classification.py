@@ -29,7 +29,7 @@ def resolve_group(model, group):
 
 def classify(model, group=None, filling=None, *, time_reversal=None, invariants=None, options=None,
              registry=None, gap_tol: float = 1e-6, symmetry_tol: float = 1e-8, samples: int = 16,
-             seed: int = 0, gauge_seed: int | None = None) -> Report:
+             seed: int = 0, gauge_seed: int | None = None, progress: bool | None = None) -> Report:
     """Every invariant that the model's symmetry allows, in one report.
 
     Parameters
@@ -57,6 +57,8 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
         Random k-points used for the symmetry checks.
     gauge_seed : int, optional
         For testing: random phases on every eigenvector (no invariant may change).
+    progress : bool, optional
+        Progress bar while large meshes are diagonalised; default only on a terminal; False turns it off.
 
     Returns
     -------
@@ -101,7 +103,7 @@ def classify(model, group=None, filling=None, *, time_reversal=None, invariants=
         raise FillingError(f"filling {filling} is odd, but with T² = −1 every band is paired at the "
                            "time-reversal-invariant momenta (Kramers): an insulator needs an even filling")
 
-    bands = BandData(model, filling, gap_tol=gap_tol, gauge_seed=gauge_seed)
+    bands = BandData(model, filling, gap_tol=gap_tol, gauge_seed=gauge_seed, progress=progress)
     results = run_invariants(model=model, group=pg, filling=filling, time_reversal=use_t, bands=bands,
                              registry=registry, only=invariants, options=options)
     checks = {"symmetry_violation": viol, "samples": samples, "symmetry_tol": symmetry_tol}

@@ -7,6 +7,7 @@ cache, never diagonalised again; :attr:`BandData.stats` records what was diagona
 
 from __future__ import annotations
 
+import sys
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -48,13 +49,18 @@ class BandData:
     gauge_seed : int, optional
         For testing: multiply every eigenvector by a random phase (seeded), so that a plugin relying on the
         eigensolver's gauge is caught; every invariant must give the same value with any seed.
+    progress : bool, optional
+        Show a progress bar (tqdm) while diagonalising a large grid; default only when standard error is a
+        terminal. False turns it off.
     """
 
     #: size of H(k) built and diagonalised at once (bytes)
     CHUNK_BYTES = 1 << 23
+    #: grids of at least this many chunks get a progress bar (when progress is on)
+    PROGRESS_MIN_CHUNKS = 4
 
     def __init__(self, model, filling: int, *, gap_tol: float = 1e-6, herm_tol: float = 1e-9,
-                 gauge_seed: int | None = None):
+                 gauge_seed: int | None = None, progress: bool | None = None):
         n = int(model.n_states)
         filling = int(filling)
         if not 0 < filling < n:
@@ -64,6 +70,7 @@ class BandData:
         self.gap_tol = float(gap_tol)
         self.herm_tol = float(herm_tol)
         self._gauge_rng = None if gauge_seed is None else np.random.default_rng(gauge_seed)
+        self.progress = progress
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
         self._points: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
@@ -81,7 +88,15 @@ class BandData:
         step = max(1, min(total, self.CHUNK_BYTES // (16 * n * n)))
         energies = np.empty((total, n))
         vectors = np.empty((total, n, n), dtype=complex)
-        for start in range(0, total, step):  # a handful of large batches, not a loop over k-points
+        starts = range(0, total, step)
+        if len(starts) >= self.PROGRESS_MIN_CHUNKS and (self.progress or (self.progress is None and sys.stderr.isatty())):
+            try:
+                from tqdm import tqdm
+
+                starts = tqdm(starts, desc=f"diagonalising {what}", unit="chunk", leave=False)
+            except ImportError:  # progress is a convenience, never a requirement
+                pass
+        for start in starts:  # a handful of large batches, not a loop over k-points
             kc = flat_k[start:start + step]
             h = np.asarray(self.model.hamiltonian(kc))
             if h.shape != (kc.shape[0], n, n):

@@ -61,3 +61,14 @@ def test_non_hermitian_input_is_refused_with_the_k_point():
 def test_filling_out_of_range_is_refused(filling):
     with pytest.raises(FillingError, match="out of range"):
         BandData(TwoBandPlane(1.0), filling=filling)
+
+
+def test_a_large_grid_shows_a_progress_bar_when_asked_and_none_otherwise(capsys):
+    from tests.bands._two_band import TwoBandPlane as Model
+
+    for progress, expect in ((True, True), (False, False)):
+        bands = BandData(Model(1.0), filling=1, progress=progress)
+        bands.CHUNK_BYTES = 64 * 16 * 4  # 64 two-band k-points per chunk: a 16x16 mesh is 4 chunks
+        bands.eigensystem(uniform_mesh((16, 16)))
+        err = capsys.readouterr().err
+        assert ("diagonalising 16x16" in err) is expect
