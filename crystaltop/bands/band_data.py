@@ -138,9 +138,32 @@ class BandData:
                 out = (e[sel], v[sel])
                 self._grids[grid] = out
                 return out
-        out = self._diagonalise(grid.points, grid.describe())
+        out = self._fill(grid)
         self._grids[grid] = out
         return out
+
+    def _fill(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
+        """Diagonalise a new grid, copying the points that cached grids (planes, lines, meshes) already hold."""
+        n = self.model.n_states
+        energies = np.empty(grid.shape + (n,))
+        vectors = np.empty(grid.shape + (n, n), dtype=complex)
+        known = np.zeros(grid.shape, dtype=bool)
+        for cached, (e, v) in self._grids.items():
+            shared = grid.overlap(cached)
+            if shared is not None:
+                mine, theirs = np.ix_(*shared[0]), np.ix_(*shared[1])
+                energies[mine], vectors[mine] = e[theirs], v[theirs]
+                known[mine] = True
+        if known.all():
+            self.stats.cache_hits += 1
+            return energies, vectors
+        if not known.any():
+            return self._diagonalise(grid.points, grid.describe())
+        missing = ~known
+        e, v = self._diagonalise(grid.points[missing], f"{grid.describe()} ({int(missing.sum())} new points)")
+        energies[missing], vectors[missing] = e, v
+        self.stats.cache_hits += 1
+        return energies, vectors
 
     def at(self, k) -> tuple[np.ndarray, np.ndarray]:
         """Energies ``(m, n)`` and eigenvectors ``(m, n, n)`` at arbitrary reduced points ``k`` of shape ``(m, dim)``.

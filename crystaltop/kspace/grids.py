@@ -84,6 +84,22 @@ class Grid:
             picks.append(np.asarray(idx, dtype=int))
         return tuple(picks)
 
+    def overlap(self, other: "Grid") -> tuple[tuple[np.ndarray, ...], tuple[np.ndarray, ...]] | None:
+        """Index arrays (into this grid, into ``other``) of the points the two grids share, or None if none."""
+        if other.dim != self.dim:
+            return None
+        mine_idx, theirs_idx = [], []
+        for mine, theirs in zip(self.axes, other.axes):
+            a = np.asarray(mine)[:, None]
+            b = np.asarray(theirs)[None, :]
+            match = np.abs(((a - b) + 0.5) % 1.0 - 0.5) <= _TOL
+            i, j = np.nonzero(match)
+            if i.size == 0:
+                return None
+            mine_idx.append(i)
+            theirs_idx.append(j)
+        return tuple(mine_idx), tuple(theirs_idx)
+
     def describe(self) -> str:
         """Short text such as ``'40x40'`` or ``'24x24 at k3=0.5'``."""
         free = [str(n) for n, p in zip(self.shape, self.periodic) if p or n > 1]

@@ -72,3 +72,12 @@ def test_a_large_grid_shows_a_progress_bar_when_asked_and_none_otherwise(capsys)
         bands.eigensystem(uniform_mesh((16, 16)))
         err = capsys.readouterr().err
         assert ("diagonalising 16x16" in err) is expect
+
+
+def test_a_mesh_asked_after_its_planes_diagonalises_only_the_points_not_yet_known():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    e_line, _ = bands.eigensystem(plane(2, 0, 0.0, (8,)))  # the line k1 = 0: 8 points
+    e_full, v_full = bands.eigensystem(uniform_mesh((8, 8)))
+    assert bands.stats.k_points == 64  # 8 + 56, not 8 + 64
+    ref = BandData(TwoBandPlane(1.0), filling=1).eigensystem(uniform_mesh((8, 8)))[0]
+    assert np.allclose(e_full, ref) and np.allclose(e_full[0], e_line[0])
