@@ -51,12 +51,13 @@ def invariant_planes(dim: int) -> list[dict]:
     pumped along k_{i+1}, loops along k_{i+2}.
     """
     if dim == 2:
-        return [{"label": "k1-k2 zone", "key": "zone", "fixed": None, "value": None, "pump": 0, "loop": 1}]
+        return [{"label": "zone", "where": "the zone", "key": "zone", "fixed": None, "value": None, "pump": 0,
+                 "loop": 1}]
     out = []
     for f in range(3):
         for v in (0.0, 0.5):
-            out.append({"label": f"k{f + 1}={v:g}", "key": f"k{f + 1}={v:g}", "fixed": f, "value": v,
-                        "pump": (f + 1) % 3, "loop": (f + 2) % 3})
+            out.append({"label": f"k{f + 1}={v:g}", "where": f"the time-reversal-invariant plane k{f + 1}={v:g}",
+                        "key": f"k{f + 1}={v:g}", "fixed": f, "value": v, "pump": (f + 1) % 3, "loop": (f + 2) % 3})
     return out
 
 
@@ -133,6 +134,8 @@ def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int) -> dict:
     x, norm, gap = centres_on(bands, dim, spec, pump, n)
     added = 0
     for level in range(max_refine + 1):
+        if norm < NORM_CHECK:  # loops too coarse to trust the centres: the caller doubles the loop mesh first
+            return {"norm": norm, "gap": gap}
         z, size = largest_gap(x)
         approach, move = step_checks(z, size, x)
         bad = (approach < GAP_CHECK) | (move > MOVE_CHECK)
@@ -141,7 +144,7 @@ def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int) -> dict:
         if level == max_refine:
             j = int(np.argmax(bad))
             raise MeshTooCoarseError(
-                f"Wannier-centre flow on the plane {spec['label']} not resolved after {max_refine} halvings of the "
+                f"Wannier-centre flow on {spec['where']} not resolved after {max_refine} halvings of the "
                 f"pumping step near k{spec['pump'] + 1}={pump[j]:.4f} (a centre comes within {approach[j]:.2f} of "
                 f"the half-gap of the tracked midpoint, or the centres move by {move[j]:.2f} of it): the gap is "
                 f"probably tiny (smallest direct gap on the plane {gap[0]:.1e} at k={_k_text(gap[1])}); "
@@ -169,7 +172,7 @@ def flow_text(spec: dict, flow: dict) -> str:
     for v in marks:
         j = int(np.argmin(np.abs(pump - v)))
         rows.append(f"k{p}={pump[j]:.3f}: " + " ".join(f"{c:.3f}" for c in x[j]))
-    return (f"{spec['label']}: k{p} from 0 to 1/2 in {pump.size} steps ({flow['added']} added by refinement), "
+    return (f"{spec['label']}: k{p} from 0 to 1/2 at {pump.size} values ({flow['added']} added by refinement), "
             f"centres along a{spec['loop'] + 1}; the largest-gap midpoint is crossed {flow['crossings']} time(s) "
             f"-> Z2 = {flow['z2']}; closest approach {flow['closest']:.3f}. Centres " + "; ".join(rows))
 
@@ -211,12 +214,12 @@ class Z2Index(Invariant):
                 try:
                     flow = track_plane(bands, dim, spec, m, max_refine)
                 except GapClosedError as exc:
-                    raise GapClosedError(f"on the time-reversal-invariant plane {spec['label']}: {exc}") from None
+                    raise GapClosedError(f"on {spec['where']}: {exc}") from None
                 if flow["norm"] >= NORM_CHECK:
                     break
                 if 2 * m > largest:
                     raise MeshTooCoarseError(
-                        f"Wilson loops on the plane {spec['label']} not converged: an eigenvalue modulus "
+                        f"Wilson loops on {spec['where']} not converged: an eigenvalue modulus "
                         f"{flow['norm']:.2f} < {NORM_CHECK} on a {m}-point loop (the gap is probably tiny: smallest "
                         f"direct gap on the plane {flow['gap'][0]:.1e} at k={_k_text(flow['gap'][1])}); "
                         f"raise max_mesh above {largest}")
