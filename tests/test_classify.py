@@ -29,7 +29,9 @@ def test_the_public_contract_of_a_report():
 
 
 def test_applicable_invariants_need_no_hamiltonian():
-    assert ct.applicable_invariants("4mm", dim=2, time_reversal=False)[:2] == ["chern", "polarization"]
+    names = ct.applicable_invariants("4mm", dim=2, time_reversal=False)
+    assert {"chern", "polarization"} <= set(names)
+    assert names.index("chern") < names.index("polarization")  # polarization reads the Chern number
     assert "chern" not in ct.applicable_invariants("-1", dim=1, time_reversal=True)
 
 

@@ -20,6 +20,39 @@ from .products import link_matrices, ordered_product
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
 
+def _periodic_match(values: np.ndarray, axis: np.ndarray, tol: float = 1e-9) -> tuple[np.ndarray, np.ndarray]:
+    """For each value, the index of an equal entry of ``axis`` (mod 1) and whether there is one."""
+    d = np.abs(((values[:, None] - axis[None, :]) + 0.5) % 1.0 - 0.5)
+    j = np.argmin(d, axis=1)
+    return j, d[np.arange(values.shape[0]), j] <= tol
+
+
+def _locate(points: np.ndarray, grid: Grid):
+    """Index tuple of each point in a grid, and a mask of the points that lie on it."""
+    idx, hit = [], np.ones(points.shape[0], dtype=bool)
+    for i in range(grid.dim):
+        j, ok = _periodic_match(points[:, i], grid.values(i))
+        idx.append(j)
+        hit &= ok
+    return tuple(idx), hit
+
+
+def _point_keys(points: np.ndarray) -> np.ndarray:
+    """Reduced points folded into [0, 1) and rounded, so that equal points (mod 1) have equal rows."""
+    return np.round(np.mod(points, 1.0), 10) % 1.0
+
+
+def _match_points(points: np.ndarray, stored_keys: np.ndarray):
+    """For each point, the index of the equal stored point (by key) and whether there is one (sort-based)."""
+    keys = _point_keys(points)
+    _, inverse = np.unique(np.concatenate([stored_keys, keys]), axis=0, return_inverse=True)
+    inverse = inverse.reshape(-1)
+    where = np.full(inverse.max() + 1, -1)
+    where[inverse[: stored_keys.shape[0]]] = np.arange(stored_keys.shape[0])
+    j = where[inverse[stored_keys.shape[0]:]]
+    return np.maximum(j, 0), j >= 0
+
+
 @dataclass
 class DiagonalisationStats:
     """Bookkeeping of the eigen-decompositions done by one :class:`BandData`."""
@@ -73,7 +106,11 @@ class BandData:
         self.progress = progress
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
-        self._points: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
+        # points diagonalised one by one (not on a grid): reduced k, energies, eigenvectors
+        n = int(model.n_states)
+        self._scattered_k = np.zeros((0, int(model.dim)))
+        self._scattered_e = np.zeros((0, n))
+        self._scattered_v = np.zeros((0, n, n), dtype=complex)
         self._gaps: dict[Grid, tuple[float, np.ndarray]] = {}
         #: every gap checked, in order (the dispatcher reads the part each invariant added)
         self.gap_log: list[float] = []
@@ -168,32 +205,44 @@ class BandData:
     def at(self, k) -> tuple[np.ndarray, np.ndarray]:
         """Energies ``(m, n)`` and eigenvectors ``(m, n, n)`` at arbitrary reduced points ``k`` of shape ``(m, dim)``.
 
-        Points that lie on a cached grid, or were asked before, are not diagonalised again.
+        Points that lie on a cached grid, or were asked before, are not diagonalised again (matched in
+        batches, without a loop over the points).
         """
         k = np.atleast_2d(np.asarray(k, dtype=float))
-        if k.shape[-1] != self.model.dim:
+        if k.ndim != 2 or k.shape[-1] != self.model.dim:
             raise ShapeError(f"k-points must have shape (m, {self.model.dim}), got {k.shape}")
-        keys = [tuple(np.round(np.mod(p, 1.0), 10) % 1.0) for p in k]
-        missing = []
-        for key in keys:
-            if key in self._points:
-                continue
-            for cached, (e, v) in self._grids.items():
-                idx = Grid(tuple((x,) for x in key), tuple(False for _ in key)).indices_in(cached)
-                if idx is not None:
-                    j = tuple(int(i[0]) for i in idx)
-                    self._points[key] = (e[j], v[j])
-                    break
-            else:
-                missing.append(key)
-        missing = list(dict.fromkeys(missing))
-        if missing:
-            e, v = self._diagonalise(np.array(missing), f"{len(missing)} points")
-            for key, ei, vi in zip(missing, e, v):
-                self._points[key] = (ei, vi)
+        n = self.model.n_states
+        m = k.shape[0]
+        energies = np.empty((m, n))
+        vectors = np.empty((m, n, n), dtype=complex)
+        found = np.zeros(m, dtype=bool)
+        for cached, (e, v) in self._grids.items():
+            todo = np.nonzero(~found)[0]
+            if todo.size == 0:
+                break
+            idx, hit = _locate(k[todo], cached)
+            if hit.any():
+                rows = todo[hit]
+                sel = tuple(i[hit] for i in idx)
+                energies[rows], vectors[rows] = e[sel], v[sel]
+                found[rows] = True
+        todo = np.nonzero(~found)[0]
+        if todo.size and self._scattered_k.shape[0]:
+            j, hit = _match_points(k[todo], self._scattered_k)
+            rows = todo[hit]
+            energies[rows], vectors[rows] = self._scattered_e[j[hit]], self._scattered_v[j[hit]]
+            found[rows] = True
+        todo = np.nonzero(~found)[0]
+        if todo.size:
+            uniq, inverse = np.unique(_point_keys(k[todo]), axis=0, return_inverse=True)
+            e, v = self._diagonalise(uniq, f"{len(uniq)} points")
+            energies[todo], vectors[todo] = e[inverse.reshape(-1)], v[inverse.reshape(-1)]
+            self._scattered_k = np.concatenate([self._scattered_k, uniq])
+            self._scattered_e = np.concatenate([self._scattered_e, e])
+            self._scattered_v = np.concatenate([self._scattered_v, v])
         else:
             self.stats.cache_hits += 1
-        return (np.stack([self._points[key][0] for key in keys]), np.stack([self._points[key][1] for key in keys]))
+        return energies, vectors
 
     # ------------------------------------------------------------------ occupied subspace and gap
     def occupied(self, grid: Grid) -> np.ndarray:
