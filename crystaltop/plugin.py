@@ -30,6 +30,8 @@ import pluggy
 from .bands import BandData, batched_det
 from .errors import NotApplicable
 from .kspace import Grid, line, plane, trims, uniform_mesh
+from .kspace import high_symmetry as _high_symmetry
+from .kspace.high_symmetry import *  # noqa: F401,F403 (high-symmetry momenta, mirror planes, C_n sectors)
 
 __all__ = [
     "PROJECT",
@@ -50,7 +52,7 @@ __all__ = [
     "line",
     "trims",
     "ELEMENTS",
-]
+] + _high_symmetry.__all__
 
 PROJECT = "crystaltop"
 ENTRY_POINT_GROUP = "crystaltop.invariants"
@@ -82,6 +84,9 @@ class Requirements:
         Invariants whose results it reads; each must have succeeded, or this one is skipped.
     optional_uses : tuple of str
         Invariants it reads when they succeeded (cross-checks); they run before it when present.
+    elements_by_dim : mapping of int to str collection
+        Elements needed only in one dimension, e.g. ``{2: {"mirror_z"}, 3: {"mirror"}}`` (a mirror Chern number
+        needs the mirror with normal z of a 2D model, and any mirror of a 3D one). Stored as sorted pairs.
     """
 
     dims: frozenset = frozenset({1, 2, 3})
@@ -91,6 +96,7 @@ class Requirements:
     spinful: bool | None = None
     uses: tuple = ()
     optional_uses: tuple = ()
+    elements_by_dim: tuple = ()
 
     def __post_init__(self):
         object.__setattr__(self, "dims", frozenset(int(d) for d in self.dims))
@@ -98,7 +104,10 @@ class Requirements:
         object.__setattr__(self, "any_elements", frozenset(self.any_elements))
         object.__setattr__(self, "uses", tuple(self.uses))
         object.__setattr__(self, "optional_uses", tuple(self.optional_uses))
-        unknown = (self.elements | self.any_elements) - ELEMENTS
+        by_dim = dict(self.elements_by_dim)
+        object.__setattr__(self, "elements_by_dim", tuple(sorted(
+            (int(d), frozenset({e} if isinstance(e, str) else e)) for d, e in by_dim.items())))
+        unknown = (self.elements | self.any_elements | frozenset().union(*(e for _, e in self.elements_by_dim))) - ELEMENTS
         if unknown:
             raise ValueError(f"unknown symmetry element(s) {sorted(unknown)}; known: {sorted(ELEMENTS)}")
 
@@ -107,6 +116,7 @@ class Requirements:
         if dim not in self.dims:
             return f"needs a model of dimension {' or '.join(str(d) for d in sorted(self.dims))}"
         missing = sorted(self.elements - set(elements))
+        missing += sorted(dict(self.elements_by_dim).get(dim, frozenset()) - set(elements) - set(missing))
         if missing:
             return "needs " + ", ".join(missing) + " in the point group"
         if self.any_elements and not (self.any_elements & set(elements)):
