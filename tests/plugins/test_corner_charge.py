@@ -1,0 +1,64 @@
+"""Corner charge and filling anomaly from the rotation indices (Benalcazar, Li, Hughes 2019; formulas from memory)."""
+
+from __future__ import annotations
+
+import pytest
+
+import crystaltop as ct
+from crystaltop.examples import benalcazar_bernevig_hughes, c4_breathing_square, qi_wu_zhang
+from crystaltop.examples.crystalline import breathing_kagome, hexagon_triangle, kekule_honeycomb
+
+NAME = "corner_charge"
+
+
+def _corner(model, group, filling):
+    return ct.classify(model, group=group, filling=filling, invariants=[NAME])[NAME]
+
+
+def _distance_from_zero(q):
+    return min(q % 1.0, 1.0 - q % 1.0)
+
+
+def test_c4_breathing_square_has_corner_charge_a_quarter():
+    # Benalcazar, Li, Hughes, PRB 99, 245151 (2019): Q = (e/4)([X1] + 2[M1] + 3[M2]) (from memory, PHYSICS.md §6)
+    # with χ = (−1, −1, 0) gives e/4; a finite flake measures 0.25 (PHYSICS.md §6, checked)
+    res = _corner(c4_breathing_square(gamma=0.5), "4/mmm", 1)
+    assert res.status == "ok" and res.value == pytest.approx(0.25)
+    assert res.details["fraction"] == "1/4" and res.details["filling_anomaly"] == 1
+    assert any("FROM MEMORY" in n for n in res.notes)
+    assert any("polarization" in n for n in res.notes)  # P = (1/2, 1/2) here: cut-dependent, said so
+
+
+@pytest.mark.parametrize("build, group, filling, magnitude, source", [
+    (lambda: breathing_kagome(0.2, 1.0), "3m", 1, 1 / 3, "C3 at 1b: e/3"),
+    (lambda: kekule_honeycomb(0.3, 1.0), "6/mmm", 3, 1 / 2, "C6 at 3c: e/2"),
+    (lambda: hexagon_triangle(0.3, 1.0), "6/mmm", 2, 1 / 3, "C6 at 2b: |Q| = e/3"),
+])
+def test_c3_and_c6_obstructed_limits_have_the_corner_charges_of_their_wyckoff_positions(build, group, filling,
+                                                                                        magnitude, source):
+    # PHYSICS.md §6 band-representation checks (Benalcazar, Li, Hughes 2019; magnitudes, formulas from memory)
+    res = _corner(build(), group, filling)
+    assert res.status == "ok", res.message
+    assert _distance_from_zero(res.value) == pytest.approx(magnitude), source
+
+
+def test_trivial_atomic_limit_has_no_corner_charge():
+    assert _corner(c4_breathing_square(gamma=1.5), "4/mmm", 1).value == 0.0
+
+
+def test_corner_charge_of_a_chern_insulator_is_skipped_with_the_reason():
+    # QWZ at m = 1 has C = −1 (PHYSICS.md §2): no corner charge
+    res = _corner(qi_wu_zhang(m=1.0), "4/m", 1)
+    assert res.status == "skipped" and "Chern number -1 is not zero" in res.message
+
+
+def test_bbh_quadrupole_corner_charge_is_left_to_the_finite_flake():
+    # Benalcazar, Bernevig, Hughes, Science 357, 61 (2017): C4^4 = −1, the spinless formula would give 1/4 or 3/4,
+    # never the measured 1/2 (PHYSICS.md §6): refused, pointing at the finite-flake measurement
+    res = _corner(benalcazar_bernevig_hughes(gamma=0.5), "4mm", 2)
+    assert res.status == "skipped" and "C4^4 = −1" in res.message and "finite flake" in res.message
+
+
+def test_a_gapless_model_fails_naming_the_gap_before_anything_else():
+    res = _corner(c4_breathing_square(gamma=1.0), "4/mmm", 1)
+    assert res.status == "failed" and "gap" in res.message and "k=" in res.message
