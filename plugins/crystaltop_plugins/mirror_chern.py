@@ -1,0 +1,199 @@
+"""Mirror Chern numbers: the Chern numbers of the two mirror sectors of the occupied states on a mirror-invariant plane.
+
+J. C. Y. Teo, L. Fu, C. L. Kane, Phys. Rev. B 78, 045426 (2008): on a plane of the zone that a mirror M maps onto
+itself, M commutes with H(k) and splits the occupied states into its two eigenvalue sectors (±i with spin ½, where
+M² = −1; ±1 spinless). With C₊, C₋ their Chern numbers, C_M = (C₊ − C₋)/2 (with time reversal C₋ = −C₊, so
+C_M = C₊). PHYSICS.md §7.
+
+Planes (crystaltop.plugin.mirror_planes): in 2D the whole zone, for the mirror whose normal is z; in 3D the plane
+normal to the mirror through Γ ("0") and the zone-boundary plane ("π") where it is a different plane.
+
+Sign convention (stated because published signs depend on it): C₊ belongs to the eigenvalue +i (spin ½) or +1
+(spinless) of the mirror's matrix D_M of docs/conventions.md — a mirror is inversion times the two-fold rotation about
+its normal n̂, with spin image exp(−iπ n̂·σ/2) = −i n̂·σ, so for spin along n̂ the spin-up states have eigenvalue −i
+times their orbital parity; each plane is oriented by n̂ = the mirror's canonical axis (``op.axis``), so every
+Chern number refers to the orientation +n̂ (the Berry convention of docs/conventions.md).
+
+Gauge safety: at every k of the plane the mirror is diagonalised on the occupied subspace, S = V† D_M V (batched);
+S/λ₀, λ₀ the mirror eigenvalue (1 or i), is Hermitian with eigenvalues ±1, and its eigenvectors give an orthonormal
+basis of each sector whatever the gauge of V; the Fukui–Hatsugai–Suzuki method (J. Phys. Soc. Jpn. 74, 1674 (2005))
+then uses only determinants of sector overlaps.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from crystaltop.errors import CrystaltopError, MeshTooCoarseError, NotApplicable, SymmetryBreakingError
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, batched_det, hookimpl, mirror_planes,
+                               plane, uniform_mesh)
+
+#: largest plaquette phase accepted, in units of π (as for the Chern number)
+CONVERGED = 0.35
+TEO_FU_KANE = "Teo, Fu, Kane, PRB 78, 045426 (2008)"
+
+
+def fhs_chern(states: np.ndarray) -> tuple[int, float, float]:
+    """Chern number (Berry convention) of the span of ``states`` (n1, n2, N, m) on a periodic mesh, FHS.
+
+    Returns the integer, its distance from the raw sum and the largest plaquette phase / π.
+    """
+    if states.shape[-1] == 0:
+        return 0, 0.0, 0.0
+    def link(axis):
+        nxt = np.roll(states, -1, axis=axis)
+        u = batched_det(np.conj(np.swapaxes(states, -1, -2)) @ nxt)
+        return u / np.abs(u)
+    u1, u2 = link(0), link(1)
+    f = np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
+    raw = -float(f.sum()) / (2 * np.pi)  # the literal FHS sum is −C (docs/conventions.md)
+    return int(round(raw)), abs(raw - round(raw)), float(np.abs(f).max() / np.pi)
+
+
+def _k_text(k) -> str:
+    return "(" + ", ".join(f"{float(x):.3f}" for x in np.mod(np.asarray(k, dtype=float), 1.0)) + ")"
+
+
+def _plain(x: float):
+    return int(round(x)) if abs(x - round(x)) < 1e-9 else float(x)
+
+
+class MirrorChern(Invariant):
+    name = "mirror_chern"
+    title = "Mirror Chern numbers"
+    requires = Requirements(dims={2, 3}, elements_by_dim={2: {"mirror_z"}, 3: {"mirror"}}, optional_uses=("chern",))
+
+    def compute(self, context):
+        dim = context.dim
+        mirrors = [op for op in context.group.mirrors() if dim == 3 or abs(op.axis[2]) > 1 - 1e-8]
+        wanted = context.option("mirrors")
+        if wanted is not None:
+            unknown = sorted(set(wanted) - {op.label for op in mirrors})
+            if unknown:
+                raise CrystaltopError(f"no mirror {', '.join(unknown)} in the group; its mirrors are "
+                                      f"{', '.join(op.label for op in mirrors)}")
+            mirrors = [op for op in mirrors if op.label in set(wanted)]
+        if not mirrors:
+            raise NotApplicable("no mirror leaves a plane of the zone invariant")
+        start = int(context.option("mesh", 48 if dim == 2 else 24))
+        largest = int(context.option("max_mesh", 192 if dim == 2 else 96))
+        chern = context.result("chern")
+        value, details, worst, mesh_used, checks = {}, {}, 0.0, set(), []
+        for op in mirrors:
+            per_plane = {}
+            for pl in mirror_planes(op, context.lattice):
+                n = start
+                while True:
+                    res = self._plane(context, op, pl, n)
+                    consistent = res["total"] == res["C+"] + res["C-"]
+                    if res["largest_plaquette_phase"] < CONVERGED and consistent:
+                        break
+                    if 2 * n > largest:
+                        raise MeshTooCoarseError(
+                            f"mirror Chern number of {op.label} on its plane {pl.name} not converged on a {n}x{n} mesh: "
+                            f"largest plaquette phase {res['largest_plaquette_phase']:.2f}π, C₊ + C₋ = "
+                            f"{res['C+'] + res['C-']} against {res['total']} for all occupied bands; raise max_mesh")
+                    n *= 2
+                worst = max(worst, res["largest_plaquette_phase"])
+                mesh_used.add(n)
+                c_plus, c_minus = res["C+"], res["C-"]
+                per_plane[pl.name] = {"C+": c_plus, "C-": c_minus, "C_M": _plain((c_plus - c_minus) / 2)}
+                reference = self._reference_chern(context, chern, pl)
+                if reference is not None:
+                    checks.append((f"{op.label} plane {pl.name}", c_plus + c_minus, reference))
+                details[f"{op.label} {pl.name}"] = {
+                    **res, "plane": {"normal u": pl.normal, "k·u": pl.level, "origin": pl.origin, "basis": pl.basis}}
+            value[op.label] = per_plane[pl.name] if dim == 2 else per_plane
+        cross = None
+        if checks:
+            agree = all(a == b for _, a, b in checks)
+            cross = CrossCheck(method="Chern number of the same plane (chern)", value={k: b for k, _, b in checks},
+                               agree=agree, note="C₊ + C₋ must equal the plane's Chern number; C₊ + C₋ = "
+                               + ", ".join(f"{a} ({k})" for k, a, _ in checks))
+        notes = (f"C_M = (C₊ − C₋)/2 ({TEO_FU_KANE}); C₊ is the sector of mirror eigenvalue +i (spin ½) or +1 "
+                 "(spinless) of D_M (docs/conventions.md), each plane oriented by the mirror normal n̂ = op.axis",
+                 "sectors from the mirror diagonalised on the occupied subspace at each k, then FHS per sector")
+        return Outcome(value=value, method=f"mirror-sector Fukui–Hatsugai–Suzuki ({TEO_FU_KANE})",
+                       mesh=", ".join(f"{n}x{n}" for n in sorted(mesh_used)) + " per plane", convergence=worst,
+                       convergence_label="largest plaquette phase/π", cross_check=cross, details=details, notes=notes)
+
+    # ------------------------------------------------------------------ one plane
+    def _occupied_on_plane(self, context, pl, n):
+        bands, dim = context.bands, context.dim
+        axes = pl.axes
+        if dim == 2:
+            grid = uniform_mesh((n, n))
+            occ = bands.occupied(grid)
+            if axes == (1, 0):
+                occ = np.swapaxes(occ, 0, 1)
+            return occ, grid.points if axes == (0, 1) else np.swapaxes(grid.points, 0, 1)
+        if axes is not None:
+            fixed = 3 - axes[0] - axes[1]
+            grid = plane(3, fixed, pl.level, (n, n))  # k_fixed = ±level ≡ level for a level of 0 or 1/2
+            occ = np.squeeze(bands.occupied(grid), axis=fixed)
+            pts = np.squeeze(grid.points, axis=fixed)
+            if axes[0] > axes[1]:
+                occ, pts = np.swapaxes(occ, 0, 1), np.swapaxes(pts, 0, 1)
+            return occ, pts
+        pts = pl.points(n)
+        flat = pts.reshape(-1, dim)
+        bands.check_gap_at(flat)
+        _, vecs = bands.at(flat)
+        occ = vecs[..., : bands.filling].reshape(n, n, vecs.shape[-2], bands.filling)
+        return occ, pts
+
+    def _plane(self, context, op, pl, n) -> dict:
+        occ, pts = self._occupied_on_plane(context, pl, n)
+        d = np.asarray(context.model.symmetry_matrix(op, pts))
+        s = np.conj(np.swapaxes(occ, -1, -2)) @ d @ occ
+        m = s.shape[-1]
+        dev = float(np.abs(np.conj(np.swapaxes(s, -1, -2)) @ s - np.eye(m)).max())
+        if dev > 1e-6:
+            raise SymmetryBreakingError(
+                f"mirror {op.label} does not map the occupied states of its plane {pl.name} onto themselves "
+                f"(deviation {dev:.1e}): the model breaks it, or bands are degenerate across the filling there")
+        square = np.einsum("...ii->...", s @ s) / m
+        c = complex(np.mean(square))
+        if abs(c - 1) < 1e-6 and np.allclose(square, 1, atol=1e-6):
+            lam0, names = 1.0, ("+1", "-1")
+        elif abs(c + 1) < 1e-6 and np.allclose(square, -1, atol=1e-6):
+            lam0, names = 1j, ("+i", "-i")
+        else:
+            raise SymmetryBreakingError(f"mirror {op.label} squares to {c:.3f}, not ±1, on the occupied states")
+        a = s / lam0
+        a = 0.5 * (a + np.conj(np.swapaxes(a, -1, -2)))
+        w, u = np.linalg.eigh(a)
+        n_minus = np.count_nonzero(w < 0, axis=-1)
+        if n_minus.min() != n_minus.max():
+            lo = np.unravel_index(int(np.argmin(n_minus)), n_minus.shape)
+            hi = np.unravel_index(int(np.argmax(n_minus)), n_minus.shape)
+            raise CrystaltopError(
+                f"the number of occupied states of mirror eigenvalue {names[1]} changes across the plane {pl.name} of "
+                f"{op.label} (from {n_minus[lo]} at k={_k_text(pts[lo])} to {n_minus[hi]} at k={_k_text(pts[hi])}): "
+                "bands of the two mirror sectors cross at the filling, the gap closes between these mesh points")
+        k = int(n_minus.flat[0])
+        minus, plus = occ @ u[..., :k], occ @ u[..., k:]
+        c_plus, e1, f1 = fhs_chern(plus)
+        c_minus, e2, f2 = fhs_chern(minus)
+        total, _, f3 = fhs_chern(occ)
+        return {"C+": c_plus, "C-": c_minus, "total": total, "sector_eigenvalues": names,
+                "sector_sizes": (m - k, k), "mesh": f"{n}x{n}", "integer_deviation": max(e1, e2),
+                "largest_plaquette_phase": max(f1, f2, f3)}
+
+    @staticmethod
+    def _reference_chern(context, chern, pl):
+        """The `chern` value of the same plane, oriented by the mirror normal, where `chern` computed it."""
+        if chern is None:
+            return None
+        if context.dim == 2:
+            return int(chern.value)
+        axes = pl.axes
+        if axes is None or pl.level != 0.0:
+            return None
+        i = 3 - axes[0] - axes[1]
+        return int(chern.value[i]) * int(np.sign(pl.normal[i]))
+
+
+@hookimpl
+def crystaltop_invariants():
+    return [MirrorChern()]
