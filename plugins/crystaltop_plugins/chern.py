@@ -17,13 +17,21 @@ from crystaltop.errors import MeshTooCoarseError
 CONVERGED = 0.35
 
 
-def plaquette_phases(links1: np.ndarray, links2: np.ndarray) -> np.ndarray:
-    """F(k) on a periodic 2D mesh from the link matrices along its two axes (leading two dimensions)."""
+#: smallest |det| of a link accepted: below it neighbouring occupied subspaces are (nearly) orthogonal, the
+#: link phase is undefined, and the mesh must be refined
+SMALLEST_LINK = 1e-6
+
+
+def plaquette_phases(links1: np.ndarray, links2: np.ndarray) -> tuple[np.ndarray, float]:
+    """F(k) on a periodic 2D mesh from the link matrices along its two axes (leading two dimensions),
+    and the smallest |det| of a link (the phases are meaningless where it vanishes)."""
     u1 = batched_det(links1)
     u2 = batched_det(links2)
-    u1 = u1 / np.abs(u1)
-    u2 = u2 / np.abs(u2)
-    return np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
+    a1, a2 = np.abs(u1), np.abs(u2)
+    smallest = float(min(a1.min(), a2.min()))
+    u1 = u1 / np.maximum(a1, 1e-300)
+    u2 = u2 / np.maximum(a2, 1e-300)
+    return np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2)), smallest
 
 
 def _orientation(lattice: np.ndarray) -> int:
@@ -44,9 +52,12 @@ class ChernNumber(Invariant):
         shape = (grid.shape[a], grid.shape[b]) + l1.shape[-2:]
         l1 = np.moveaxis(l1, (a, b), (0, 1)).reshape(shape)
         l2 = np.moveaxis(l2, (a, b), (0, 1)).reshape(shape)
-        f = plaquette_phases(l1, l2)
+        f, smallest = plaquette_phases(l1, l2)
         total = -float(f.sum()) / (2 * np.pi)
-        return int(round(total)), abs(total - round(total)), float(np.max(np.abs(f)) / np.pi)
+        worst = float(np.max(np.abs(f)) / np.pi)
+        if smallest < SMALLEST_LINK:  # a vanishing link: not converged whatever the phases say
+            worst = 1.0
+        return int(round(total)), abs(total - round(total)), worst
 
     def compute(self, context):
         bands, dim = context.bands, context.dim
