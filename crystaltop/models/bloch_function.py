@@ -18,6 +18,7 @@ from ..errors import CrystaltopError, NonHermitianError, ShapeError, UnknownOper
 from ..symmetry import PointGroup
 from ..symmetry import time_reversal_matrix as _standard_time_reversal
 from .base import BlochModel, _as_unitary, as_lattice
+from .phases import bloch_sum
 
 __all__ = ["BlochFunction"]
 
@@ -161,8 +162,7 @@ class BlochFunction(BlochModel):
         b.setflags(write=False)
 
         def h(k):
-            phases = np.exp(2j * np.pi * (k @ c.T.astype(float)))
-            return (phases @ b.reshape(len(c), n * n)).reshape(k.shape[:-1] + (n, n))
+            return bloch_sum(k, c, b)
 
         model = cls(h, lattice=lat, positions=positions, **options)
         model._blocks = (c, b)

@@ -16,6 +16,7 @@ import numpy as np
 from ..errors import CrystaltopError, LatticeMismatchError, NonHermitianError, ShapeError
 from ..symmetry import expand_kinds, orbital_block, time_reversal_matrix
 from .base import BlochModel, as_lattice
+from .phases import bloch_sum
 
 __all__ = ["LatticeModel", "Site", "Bond"]
 
@@ -288,11 +289,7 @@ class LatticeModel(BlochModel):
     # ------------------------------------------------------------------ numerics
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         cells, blocks = self._stacked()
-        n = self.n_states
-        flat = k.reshape(-1, k.shape[-1])
-        phases = np.exp(2j * np.pi * (flat @ cells.T.astype(float)))  # (points, m)
-        # one 2D product (a 3D-by-2D matmul loops over the leading axis in small pieces)
-        return (phases @ blocks.reshape(len(cells), n * n)).reshape(k.shape[:-1] + (n, n))
+        return bloch_sum(k, cells, blocks)
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:
         fixed, shifts = self._symmetry_data(op)
