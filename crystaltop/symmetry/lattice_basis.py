@@ -11,6 +11,8 @@ and a reduced momentum (a row in units of the reciprocal basis) transforms as ``
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
 from crystaltop.errors import LatticeMismatchError, ShapeError
@@ -53,7 +55,16 @@ def matrix_in_basis(rotation: np.ndarray, lattice: np.ndarray, label: str) -> np
         If ``W`` is not integral within :data:`INTEGRALITY_TOL`, or if for a 1D/2D lattice ``R`` does
         not map the lattice's line/plane onto itself. The message names the operation ``label``.
     """
-    arr = as_lattice(lattice)
+    rot = np.ascontiguousarray(rotation, dtype=float)
+    lat = np.ascontiguousarray(lattice, dtype=float)
+    # memoised on the exact bytes: symmetry eigenvalues and checks ask for the same few matrices many times
+    return _matrix_in_basis(rot.tobytes(), rot.shape, lat.tobytes(), lat.shape, label).copy()
+
+
+@lru_cache(maxsize=4096)
+def _matrix_in_basis(rot_bytes: bytes, rot_shape: tuple, lat_bytes: bytes, lat_shape: tuple, label: str) -> np.ndarray:
+    rotation = np.frombuffer(rot_bytes, dtype=float).reshape(rot_shape)
+    arr = as_lattice(np.frombuffer(lat_bytes, dtype=float).reshape(lat_shape))
     dim = arr.shape[0]
     rot = np.asarray(rotation, dtype=float)
     if dim < 3:
