@@ -20,21 +20,26 @@ from .products import link_matrices, ordered_product
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
 
-def _periodic_match(values: np.ndarray, axis: np.ndarray, tol: float = 1e-9) -> tuple[np.ndarray, np.ndarray]:
-    """For each value, the index of an equal entry of ``axis`` (mod 1) and whether there is one."""
-    d = np.abs(((values[:, None] - axis[None, :]) + 0.5) % 1.0 - 0.5)
-    j = np.argmin(d, axis=1)
-    return j, d[np.arange(values.shape[0]), j] <= tol
+def _axis_table(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The values of a grid axis sorted, and their positions on the axis (for :func:`_axis_match`)."""
+    order = np.argsort(values, kind="stable")
+    return values[order], order
 
 
-def _locate(points: np.ndarray, grid: Grid):
-    """Index tuple of each point in a grid, and a mask of the points that lie on it."""
-    idx, hit = [], np.ones(points.shape[0], dtype=bool)
-    for i in range(grid.dim):
-        j, ok = _periodic_match(points[:, i], grid.values(i))
-        idx.append(j)
-        hit &= ok
-    return tuple(idx), hit
+def _axis_match(values: np.ndarray, table, tol: float = 1e-9) -> tuple[np.ndarray, np.ndarray]:
+    """For each value, the index of an equal entry (mod 1) of a grid axis and whether there is one.
+
+    Binary search in the sorted axis: the nearest entry on the circle is the one just below or just above.
+    """
+    ordered, order = table
+    v = np.mod(values, 1.0)
+    n = ordered.shape[0]
+    pos = np.searchsorted(ordered, v)
+    below, above = (pos - 1) % n, pos % n
+    d_below = np.abs((v - ordered[below] + 0.5) % 1.0 - 0.5)
+    d_above = np.abs((v - ordered[above] + 0.5) % 1.0 - 0.5)
+    up = d_above < d_below
+    return order[np.where(up, above, below)], np.where(up, d_above, d_below) <= tol
 
 
 def _point_keys(points: np.ndarray) -> np.ndarray:
@@ -106,6 +111,10 @@ class BandData:
         self.progress = progress
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
+        # the cached grids contained in no other cached grid: every cached point is on one of them, so lookups
+        # need search only these (usually one or two once a full mesh is cached)
+        self._maximal: list[Grid] = []
+        self._tables: dict[Grid, list] = {}
         # points diagonalised one by one (not on a grid): reduced k, energies, eigenvectors
         n = int(model.n_states)
         self._scattered_k = np.zeros((0, int(model.dim)))
@@ -167,29 +176,51 @@ class BandData:
         if grid in self._grids:
             self.stats.cache_hits += 1
             return self._grids[grid]
-        for cached, (e, v) in self._grids.items():
+        for cached in self._maximal:
             idx = grid.indices_in(cached)
             if idx is not None:
                 self.stats.cache_hits += 1
+                e, v = self._grids[cached]
                 sel = np.ix_(*idx)
                 out = (e[sel], v[sel])
                 self._grids[grid] = out
                 return out
         out = self._fill(grid)
         self._grids[grid] = out
+        self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
         return out
 
+    def _locate(self, points: np.ndarray, grid: Grid):
+        """Index tuple of each point in a grid, and a mask of the points that lie on it."""
+        tables = self._tables.get(grid)
+        if tables is None:
+            tables = self._tables[grid] = [_axis_table(grid.values(i)) for i in range(grid.dim)]
+        idx, hit = [], np.ones(points.shape[0], dtype=bool)
+        for i, table in enumerate(tables):
+            j, ok = _axis_match(points[:, i], table)
+            idx.append(j)
+            hit &= ok
+        return tuple(idx), hit
+
     def _fill(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
-        """Diagonalise a new grid, copying the points that cached grids (planes, lines, meshes) already hold."""
+        """Diagonalise a new grid, copying the points that cached grids (planes, lines, meshes) and earlier
+        scattered points already hold."""
         n = self.model.n_states
         energies = np.empty(grid.shape + (n,))
         vectors = np.empty(grid.shape + (n, n), dtype=complex)
         known = np.zeros(grid.shape, dtype=bool)
-        for cached, (e, v) in self._grids.items():
+        for cached in self._maximal:
             shared = grid.overlap(cached)
             if shared is not None:
+                e, v = self._grids[cached]
                 mine, theirs = np.ix_(*shared[0]), np.ix_(*shared[1])
                 energies[mine], vectors[mine] = e[theirs], v[theirs]
+                known[mine] = True
+        if self._scattered_k.shape[0]:
+            idx, hit = self._locate(self._scattered_k, grid)
+            if hit.any():
+                mine = tuple(i[hit] for i in idx)
+                energies[mine], vectors[mine] = self._scattered_e[hit], self._scattered_v[hit]
                 known[mine] = True
         if known.all():
             self.stats.cache_hits += 1
@@ -215,24 +246,21 @@ class BandData:
         m = k.shape[0]
         energies = np.empty((m, n))
         vectors = np.empty((m, n, n), dtype=complex)
-        found = np.zeros(m, dtype=bool)
-        for cached, (e, v) in self._grids.items():
-            todo = np.nonzero(~found)[0]
-            if todo.size == 0:
-                break
-            idx, hit = _locate(k[todo], cached)
+        todo = np.arange(m)
+        for cached in self._maximal:
+            idx, hit = self._locate(k[todo], cached)
             if hit.any():
-                rows = todo[hit]
+                e, v = self._grids[cached]
                 sel = tuple(i[hit] for i in idx)
-                energies[rows], vectors[rows] = e[sel], v[sel]
-                found[rows] = True
-        todo = np.nonzero(~found)[0]
+                energies[todo[hit]], vectors[todo[hit]] = e[sel], v[sel]
+                todo = todo[~hit]
+                if todo.size == 0:
+                    break
         if todo.size and self._scattered_k.shape[0]:
             j, hit = _match_points(k[todo], self._scattered_k)
             rows = todo[hit]
             energies[rows], vectors[rows] = self._scattered_e[j[hit]], self._scattered_v[j[hit]]
-            found[rows] = True
-        todo = np.nonzero(~found)[0]
+            todo = todo[~hit]
         if todo.size:
             uniq, inverse = np.unique(_point_keys(k[todo]), axis=0, return_inverse=True)
             e, v = self._diagonalise(uniq, f"{len(uniq)} points")
@@ -271,7 +299,9 @@ class BandData:
 
     def check_gap_at(self, k) -> float:
         """The smallest direct gap at the given points; :class:`GapClosedError` naming the point if too small."""
-        e, _ = self.at(k)
+        return self._check_gap_of(self.at(k)[0], k)
+
+    def _check_gap_of(self, e: np.ndarray, k) -> float:
         g = e[:, self.filling] - e[:, self.filling - 1]
         j = int(np.argmin(g))
         self.gap_log.append(float(g[j]))
@@ -327,8 +357,9 @@ class BandData:
         shift = gk - k
         if np.max(np.abs(shift - np.round(shift))) > 1e-8:
             raise SymmetryBreakingError(f"operation {op.label} does not fix k={format_k(k)} (it maps it to {format_k(gk)})")
-        self.check_gap_at(k[None])
-        v = self.at(k[None])[1][0][:, : self.filling]
+        e, v = self.at(k[None])  # one lookup for the gap check and the states
+        self._check_gap_of(e, k[None])
+        v = v[0][:, : self.filling]
         d = np.asarray(self.model.symmetry_matrix(op, k))
         s = np.conj(v.T) @ d @ v
         dev = np.linalg.norm(np.conj(s.T) @ s - np.eye(self.filling))

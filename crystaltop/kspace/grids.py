@@ -73,15 +73,11 @@ class Grid:
             return None
         picks = []
         for mine, theirs in zip(self.axes, other.axes):
-            theirs = np.asarray(theirs)
-            idx = []
-            for v in mine:
-                d = np.abs(((theirs - v) + 0.5) % 1.0 - 0.5)
-                j = int(np.argmin(d))
-                if d[j] > _TOL:
-                    return None
-                idx.append(j)
-            picks.append(np.asarray(idx, dtype=int))
+            d = np.abs(((np.asarray(theirs)[None, :] - np.asarray(mine)[:, None]) + 0.5) % 1.0 - 0.5)
+            j = np.argmin(d, axis=1)
+            if d[np.arange(len(mine)), j].max() > _TOL:
+                return None
+            picks.append(j)
         return tuple(picks)
 
     def overlap(self, other: "Grid") -> tuple[tuple[np.ndarray, ...], tuple[np.ndarray, ...]] | None:
