@@ -119,19 +119,21 @@ class ParityIndices(Invariant):
         if dim == 3:
             strong, weak = value
             details["label"] = f"{strong};(" + "".join(map(str, weak)) + ")"
-        checks, own = self._cross_checks(context, value)
+        checks, own = self._cross_checks(context, value, details.get("band_inversion_trim"))
         if "band_inversion_trim" in details:
             notes.append(f"band inversion at {details['band_inversion_trim']} relative to an atomic limit "
                          "centred at the origin")
         return Outcome(value=value, method=METHOD, mesh=f"{len(points)} TRIMs", checks_for=checks, cross_check=own,
                        details=details, notes=tuple(notes))
 
-    def _cross_checks(self, context, value):
+    def _cross_checks(self, context, value, inverted=None):
         """This value as a check of z2/weak_indices, and theirs as a check of this one."""
         z2, weak = context.result("z2"), context.result("weak_indices")
         checks, own = {}, None
         strong, weak_value = (value, None) if context.dim == 2 else value
         note = f"inversion eigenvalues at the {2 ** context.dim} TRIMs"
+        if inverted is not None:
+            note += f"; band inversion at {inverted}"
         if z2 is not None:
             checks["z2"] = CrossCheck(method=METHOD, value=strong, agree=z2.value == strong, note=note)
         if weak is not None and weak_value is not None:

@@ -28,11 +28,13 @@ def _report(model, group, filling=2, **kw):
 @pytest.mark.parametrize("m, z2, trim", [(-1.0, 0, None), (1.0, 1, "(0, 0)"), (3.0, 1, "(0, 0)"),
                                          (5.0, 1, "(1/2, 1/2)"), (7.0, 1, "(1/2, 1/2)"), (9.0, 0, None)])
 def test_bernevig_hughes_zhang_parities_and_the_momentum_of_the_band_inversion(m, z2, trim):
-    res = _report(bernevig_hughes_zhang(a=1.0, b=1.0, m=m), "4/mmm")["parity_indices"]
+    report = _report(bernevig_hughes_zhang(a=1.0, b=1.0, m=m), "4/mmm")
+    res = report["parity_indices"]
     assert res.status == "ok" and res.value == z2
     assert res.details.get("band_inversion_trim") == trim
     if trim is not None:
         assert res.details["band_inversion_k"] == ((0.0, 0.0) if trim == "(0, 0)" else (0.5, 0.5))
+        assert f"band inversion at {trim}" in report["z2"].cross_checks[0].note  # shown beside z2 too
 
 
 def test_kane_mele_with_inversion_is_a_quantum_spin_hall_insulator_by_parities_too():
