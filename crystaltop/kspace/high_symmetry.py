@@ -177,6 +177,13 @@ def rotation_levels(op, lattice) -> tuple[np.ndarray, tuple[float, ...]]:
     lat = _lattice(lattice)
     if lat.shape[0] != 3:
         raise ShapeError("rotation_levels needs a 3D lattice")
+    u, levels = _rotation_levels(op, *_lattice_key(lat))
+    return u.copy(), levels
+
+
+@lru_cache(maxsize=1024)
+def _rotation_levels(op, lattice_bytes: bytes, dim: int) -> tuple[np.ndarray, tuple[float, ...]]:
+    lat = _from_lattice_key(lattice_bytes, dim)
     axis = np.asarray(op.axis, dtype=float)
     u = _integer_direction(axis, lat, f"axis of {op.label}")
     g = _integer_direction(axis, reciprocal_basis(lat), f"axis of {op.label} (reciprocal)")
@@ -509,6 +516,22 @@ def high_symmetry_momenta(group, lattice) -> tuple[HighSymmetryMomentum, ...]:
     dim = lat.shape[0]
     if dim not in (2, 3):
         raise ShapeError(f"high-symmetry momenta are defined here for 2D and 3D lattices, got dim {dim}")
+    return _high_symmetry_momenta(group, *_lattice_key(lat))
+
+
+def _lattice_key(lattice: np.ndarray) -> tuple[bytes, int]:
+    return np.ascontiguousarray(lattice, dtype=float).tobytes(), lattice.shape[0]
+
+
+def _from_lattice_key(data: bytes, dim: int) -> np.ndarray:
+    return np.frombuffer(data, dtype=float).reshape(dim, dim)
+
+
+# Memoised: a report asks for the momenta of its group from several invariants, and a sweep for every point;
+# the result is immutable (frozen records of tuples). Groups compare by their operations' labels and matrices.
+@lru_cache(maxsize=256)
+def _high_symmetry_momenta(group, lattice_bytes: bytes, dim: int) -> tuple[HighSymmetryMomentum, ...]:
+    lat = _from_lattice_key(lattice_bytes, dim)
     group.in_basis(lat)  # LatticeMismatchError naming the operation
     found: set[tuple] = {_key(np.zeros(dim))}
     for op in planar_rotations(group, dim):
@@ -605,7 +628,12 @@ def mirror_planes(op, lattice) -> tuple[MirrorPlane, ...]:
         If ``op`` is not a mirror, or in 2D its normal lies in the plane (it leaves only lines invariant).
     """
     lat = _lattice(lattice)
-    dim = lat.shape[0]
+    return _mirror_planes(op, *_lattice_key(lat))
+
+
+@lru_cache(maxsize=1024)
+def _mirror_planes(op, lattice_bytes: bytes, dim: int) -> tuple[MirrorPlane, ...]:
+    lat = _from_lattice_key(lattice_bytes, dim)
     if op.kind != "mirror":
         raise CrystaltopError(f"operation {op.label} is not a mirror")
     normal = np.asarray(op.axis, dtype=float)
