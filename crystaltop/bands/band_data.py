@@ -15,7 +15,7 @@ import numpy as np
 from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
 from ..kspace import Grid
 from ..models.base import format_k
-from .products import link_matrices, ordered_product
+from .products import batched_det, link_matrices, ordered_product
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
@@ -335,6 +335,14 @@ class BandData:
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""
         return ordered_product(self.links(grid, axis, embed=True), axis)
+
+    def wilson_loop_determinants(self, grid: Grid, axis: int) -> np.ndarray:
+        """``det W`` of the Wilson loop along ``axis`` for every point of the other axes, ``(*other_shape,)``.
+
+        The determinant is multiplicative, so it is the product of the link determinants along the loop: the
+        sum of the Wannier centres (Berry phase) without forming the loops themselves.
+        """
+        return np.prod(batched_det(self.links(grid, axis, embed=True)), axis=axis)
 
     def wannier_centres(self, grid: Grid, axis: int) -> np.ndarray:
         """Hybrid Wannier centres along ``axis`` in ``[0, 1)`` (reduced units), sorted, ``(*other_shape, m)``.

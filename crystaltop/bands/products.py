@@ -50,10 +50,25 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     -------
     ndarray, shape (*grid, m, m)
     """
-    nxt = np.roll(vectors, -1, axis=axis)
+    axis = axis + vectors.ndim if axis < 0 else axis  # as numpy counts it (a negative axis from the end)
+    ket = vectors
     if phase is not None:
-        nxt = phase @ nxt
-    return np.conj(np.swapaxes(vectors, -1, -2)) @ nxt
+        phase = np.asarray(phase)
+        diagonal = np.diagonal(phase)
+        # P is diagonal in a site basis: a scaling of the rows instead of a product per k-point
+        ket = diagonal[:, None] * vectors if not np.any(phase - np.diag(diagonal)) else phase @ vectors
+    bra = np.conj(np.swapaxes(vectors, -1, -2))
+    m = vectors.shape[-1]
+    out = np.empty(vectors.shape[:-2] + (m, m), dtype=np.result_type(vectors, ket))
+    n = vectors.shape[axis]
+
+    def part(start, stop):
+        return (slice(None),) * axis + (slice(start, stop),)
+
+    # <u(k)| with P|u(k + dk)>, the last point linked to the first, without a rolled copy of the states
+    np.matmul(bra[part(0, n - 1)], ket[part(1, n)], out=out[part(0, n - 1)])
+    np.matmul(bra[part(n - 1, n)], ket[part(0, 1)], out=out[part(n - 1, n)])
+    return out
 
 
 def unitary_part(mats: np.ndarray) -> np.ndarray:
