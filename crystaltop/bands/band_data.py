@@ -34,6 +34,8 @@ def _axis_match(values: np.ndarray, table, tol: float = 1e-9) -> tuple[np.ndarra
     ordered, order = table
     v = np.mod(values, 1.0)
     n = ordered.shape[0]
+    if n == 1:  # a fixed coordinate (plane, line)
+        return np.zeros(v.shape[0], dtype=int), np.abs((v - ordered[0] + 0.5) % 1.0 - 0.5) <= tol
     pos = np.searchsorted(ordered, v)
     below, above = (pos - 1) % n, pos % n
     d_below = np.abs((v - ordered[below] + 0.5) % 1.0 - 0.5)
@@ -47,11 +49,24 @@ def _point_keys(points: np.ndarray) -> np.ndarray:
     return np.round(np.mod(points, 1.0), 10) % 1.0
 
 
+def _unique_rows(keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The distinct rows in lexicographic order and the index of each row among them, like
+    ``np.unique(keys, axis=0, return_inverse=True)`` but by one lexsort of the columns."""
+    if keys.shape[0] == 0:
+        return keys, np.zeros(0, dtype=int)
+    order = np.lexsort(keys.T[::-1])
+    ordered = keys[order]
+    new = np.ones(ordered.shape[0], dtype=bool)
+    new[1:] = np.any(ordered[1:] != ordered[:-1], axis=1)
+    inverse = np.empty(ordered.shape[0], dtype=int)
+    inverse[order] = np.cumsum(new) - 1
+    return ordered[new], inverse
+
+
 def _match_points(points: np.ndarray, stored_keys: np.ndarray):
     """For each point, the index of the equal stored point (by key) and whether there is one (sort-based)."""
     keys = _point_keys(points)
-    _, inverse = np.unique(np.concatenate([stored_keys, keys]), axis=0, return_inverse=True)
-    inverse = inverse.reshape(-1)
+    _, inverse = _unique_rows(np.concatenate([stored_keys, keys]))
     where = np.full(inverse.max() + 1, -1)
     where[inverse[: stored_keys.shape[0]]] = np.arange(stored_keys.shape[0])
     j = where[inverse[stored_keys.shape[0]:]]
@@ -190,17 +205,22 @@ class BandData:
         self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
         return out
 
-    def _locate(self, points: np.ndarray, grid: Grid):
-        """Index tuple of each point in a grid, and a mask of the points that lie on it."""
+    def _locate(self, points: np.ndarray, grid: Grid) -> tuple[np.ndarray, tuple[np.ndarray, ...]]:
+        """The rows of ``points`` that lie on the grid, and their index tuple in it."""
         tables = self._tables.get(grid)
         if tables is None:
             tables = self._tables[grid] = [_axis_table(grid.values(i)) for i in range(grid.dim)]
-        idx, hit = [], np.ones(points.shape[0], dtype=bool)
-        for i, table in enumerate(tables):
-            j, ok = _axis_match(points[:, i], table)
-            idx.append(j)
-            hit &= ok
-        return tuple(idx), hit
+        rows = np.arange(points.shape[0])
+        idx: list = [np.zeros(0, dtype=int)] * grid.dim
+        # the shortest axes first (a plane's fixed coordinate): most points that are off the grid drop out there
+        for i in sorted(range(grid.dim), key=lambda a: grid.shape[a]):
+            j, ok = _axis_match(points[rows, i], tables[i])
+            rows = rows[ok]
+            idx = [a[ok] if a.shape[0] == ok.shape[0] else a for a in idx]
+            idx[i] = j[ok]
+            if rows.size == 0:
+                return rows, tuple(np.zeros(0, dtype=int) for _ in range(grid.dim))
+        return rows, tuple(idx)
 
     def _fill(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
         """Diagonalise a new grid, copying the points that cached grids (planes, lines, meshes) and earlier
@@ -217,10 +237,9 @@ class BandData:
                 energies[mine], vectors[mine] = e[theirs], v[theirs]
                 known[mine] = True
         if self._scattered_k.shape[0]:
-            idx, hit = self._locate(self._scattered_k, grid)
-            if hit.any():
-                mine = tuple(i[hit] for i in idx)
-                energies[mine], vectors[mine] = self._scattered_e[hit], self._scattered_v[hit]
+            rows, mine = self._locate(self._scattered_k, grid)
+            if rows.size:
+                energies[mine], vectors[mine] = self._scattered_e[rows], self._scattered_v[rows]
                 known[mine] = True
         if known.all():
             self.stats.cache_hits += 1
@@ -248,12 +267,13 @@ class BandData:
         vectors = np.empty((m, n, n), dtype=complex)
         todo = np.arange(m)
         for cached in self._maximal:
-            idx, hit = self._locate(k[todo], cached)
-            if hit.any():
+            rows, sel = self._locate(k[todo], cached)
+            if rows.size:
                 e, v = self._grids[cached]
-                sel = tuple(i[hit] for i in idx)
-                energies[todo[hit]], vectors[todo[hit]] = e[sel], v[sel]
-                todo = todo[~hit]
+                energies[todo[rows]], vectors[todo[rows]] = e[sel], v[sel]
+                left = np.ones(todo.size, dtype=bool)
+                left[rows] = False
+                todo = todo[left]
                 if todo.size == 0:
                     break
         if todo.size and self._scattered_k.shape[0]:
@@ -262,9 +282,9 @@ class BandData:
             energies[rows], vectors[rows] = self._scattered_e[j[hit]], self._scattered_v[j[hit]]
             todo = todo[~hit]
         if todo.size:
-            uniq, inverse = np.unique(_point_keys(k[todo]), axis=0, return_inverse=True)
+            uniq, inverse = _unique_rows(_point_keys(k[todo]))
             e, v = self._diagonalise(uniq, f"{len(uniq)} points")
-            energies[todo], vectors[todo] = e[inverse.reshape(-1)], v[inverse.reshape(-1)]
+            energies[todo], vectors[todo] = e[inverse], v[inverse]
             self._scattered_k = np.concatenate([self._scattered_k, uniq])
             self._scattered_e = np.concatenate([self._scattered_e, e])
             self._scattered_v = np.concatenate([self._scattered_v, v])
@@ -277,6 +297,13 @@ class BandData:
         """Occupied eigenvectors ``(*shape, n, filling)`` after checking the gap on the grid."""
         self.check_gap(grid)
         return self.eigensystem(grid)[1][..., : self.filling]
+
+    def occupied_at(self, k) -> np.ndarray:
+        """Occupied eigenvectors ``(m, n, filling)`` at arbitrary points after checking the gap there
+        (:meth:`check_gap_at` and :meth:`at` in one lookup)."""
+        e, v = self.at(k)
+        self._check_gap_of(e, k)
+        return v[..., : self.filling]
 
     def gap(self, grid: Grid) -> tuple[float, np.ndarray]:
         """Smallest direct gap above the occupied bands on the grid and the k-point where it occurs."""

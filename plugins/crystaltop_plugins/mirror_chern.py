@@ -137,9 +137,8 @@ class MirrorChern(Invariant):
             return occ, pts
         pts = pl.points(n)
         flat = pts.reshape(-1, dim)
-        bands.check_gap_at(flat)
-        _, vecs = bands.at(flat)
-        occ = vecs[..., : bands.filling].reshape(n, n, vecs.shape[-2], bands.filling)
+        occ = bands.occupied_at(flat)  # the gap is checked on the same lookup
+        occ = occ.reshape(n, n, occ.shape[-2], bands.filling)
         return occ, pts
 
     def _plane(self, context, op, pl, n) -> dict:
