@@ -72,7 +72,12 @@ class Grid:
         if other.dim != self.dim:
             return None
         picks = []
-        for mine, theirs in zip(self.axes, other.axes):
+        for mine, theirs, uniform, uniform_too in zip(self.axes, other.axes, self.periodic, other.periodic):
+            if uniform and uniform_too:  # j/N inside j/M: exactly when N divides M, every (M/N)-th value
+                if len(theirs) % len(mine):
+                    return None
+                picks.append(np.arange(len(mine)) * (len(theirs) // len(mine)))
+                continue
             d = np.abs(((np.asarray(theirs)[None, :] - np.asarray(mine)[:, None]) + 0.5) % 1.0 - 0.5)
             j = np.argmin(d, axis=1)
             if d[np.arange(len(mine)), j].max() > _TOL:
