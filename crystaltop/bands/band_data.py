@@ -136,6 +136,10 @@ class BandData:
         self._scattered_e = np.zeros((0, n))
         self._scattered_v = np.zeros((0, n, n), dtype=complex)
         self._gaps: dict[Grid, tuple[float, np.ndarray]] = {}
+        # single points asked for again (high-symmetry momenta, by several invariants): by their exact bytes
+        self._single: dict[bytes, tuple[np.ndarray, np.ndarray]] = {}
+        # occupied-subspace representations already formed: (operation, k) -> (matrix, gap at k)
+        self._representations: dict[tuple, tuple[np.ndarray, float]] = {}
         #: every gap checked, in order (the dispatcher reads the part each invariant added)
         self.gap_log: list[float] = []
 
@@ -263,6 +267,19 @@ class BandData:
             raise ShapeError(f"k-points must have shape (m, {self.model.dim}), got {k.shape}")
         n = self.model.n_states
         m = k.shape[0]
+        if m == 1:
+            key = k.tobytes()
+            hit = self._single.get(key)
+            if hit is None:
+                hit = self._single[key] = self._at(k)
+            else:
+                self.stats.cache_hits += 1
+            return hit[0].copy(), hit[1].copy()
+        return self._at(k)
+
+    def _at(self, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        n = self.model.n_states
+        m = k.shape[0]
         energies = np.empty((m, n))
         vectors = np.empty((m, n, n), dtype=complex)
         todo = np.arange(m)
@@ -387,13 +404,18 @@ class BandData:
         :class:`SymmetryBreakingError` if ``g`` does not fix ``k`` or the occupied subspace is not invariant.
         """
         k = np.asarray(k, dtype=float).reshape(self.model.dim)
+        key = (op.label, np.asarray(op.matrix, dtype=float).tobytes(), k.tobytes(), float(tol))
+        done = self._representations.get(key)
+        if done is not None:  # the same check and matrix as the first time; its gap counts for this caller too
+            self.gap_log.append(done[1])
+            return done[0].copy()
         lattice = self.model.lattice
         gk = np.asarray(op.acts_on_k(k, lattice), dtype=float)
         shift = gk - k
         if np.max(np.abs(shift - np.round(shift))) > 1e-8:
             raise SymmetryBreakingError(f"operation {op.label} does not fix k={format_k(k)} (it maps it to {format_k(gk)})")
         e, v = self.at(k[None])  # one lookup for the gap check and the states
-        self._check_gap_of(e, k[None])
+        gap = self._check_gap_of(e, k[None])
         v = v[0][:, : self.filling]
         d = np.asarray(self.model.symmetry_matrix(op, k))
         s = np.conj(v.T) @ d @ v
@@ -402,7 +424,8 @@ class BandData:
             raise SymmetryBreakingError(
                 f"operation {op.label} does not map the occupied states at k={format_k(k)} onto themselves "
                 f"(deviation from unitarity {dev:.1e}): the model breaks it or bands are degenerate across the filling")
-        return s
+        self._representations[key] = (s, gap)
+        return s.copy()
 
     def symmetry_eigenvalues(self, op, k) -> np.ndarray:
         """Eigenvalues of :meth:`symmetry_representation`, sorted by phase angle."""
