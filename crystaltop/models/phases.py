@@ -13,6 +13,11 @@ import numpy as np
 __all__ = ["lattice_phases", "bloch_sum"]
 
 
+#: below this many momenta the phases are gathered from the power tables in a few whole-array operations;
+#: above it they are written row by row (no temporaries of the full size)
+_GATHER_POINTS = 2048
+
+
 def lattice_phases(k: np.ndarray, cells: np.ndarray) -> np.ndarray:
     """``exp(2πi k·R)`` for every momentum and lattice vector, shape ``(m, points)`` (one row per vector).
 
@@ -24,24 +29,35 @@ def lattice_phases(k: np.ndarray, cells: np.ndarray) -> np.ndarray:
         Lattice vectors in reduced (integer) coordinates.
     """
     points, dim = k.shape
-    powers = []  # per axis: {p: z_axis^p} for the powers p != 0 that occur
+    tables, offsets = [], []  # per axis: rows z^p for p = lo .. hi (row -lo is z^0 = 1)
     for axis in range(dim):
-        wanted = {int(p) for p in cells[:, axis]} - {0}
-        if not wanted:
-            powers.append({})
-            continue
-        theta = (2.0 * np.pi) * k[:, axis]
-        z = np.empty(points, dtype=complex)
-        z.real = np.cos(theta)
-        z.imag = np.sin(theta)
-        table = {1: z, -1: np.conj(z)}  # |z| = 1: the conjugate is the inverse
-        for p in range(2, max(abs(q) for q in wanted) + 1):
-            table[p] = table[p - 1] * z
-            table[-p] = np.conj(table[p])
-        powers.append(table)
+        lo, hi = int(cells[:, axis].min(initial=0)), int(cells[:, axis].max(initial=0))
+        table = np.empty((hi - lo + 1, points), dtype=complex)
+        table[-lo] = 1.0
+        if lo < 0 or hi > 0:
+            theta = (2.0 * np.pi) * k[:, axis]
+            z = np.empty(points, dtype=complex)
+            z.real = np.cos(theta)
+            z.imag = np.sin(theta)
+            power = z
+            for p in range(1, max(hi, -lo) + 1):
+                if p > 1:
+                    power = power * z
+                if p <= hi:
+                    table[p - lo] = power
+                if -p >= lo:
+                    np.conj(power, out=table[-p - lo])  # |z| = 1: the conjugate is the inverse
+        tables.append(table)
+        offsets.append(lo)
+    if points <= _GATHER_POINTS:
+        factors = [t[cells[:, axis] - lo] for axis, (t, lo) in enumerate(zip(tables, offsets))]
+        out = factors[0]
+        for f in factors[1:]:
+            out *= f  # multiplying by a row of ones is exact, so this equals the product of the non-zero powers
+        return out
     out = np.empty((cells.shape[0], points), dtype=complex)
     for row, cell in zip(out, cells):  # a loop over the lattice vectors, each a product of at most dim factors
-        factors = [powers[axis][int(p)] for axis, p in enumerate(cell) if p]
+        factors = [tables[axis][int(p) - offsets[axis]] for axis, p in enumerate(cell) if p]
         if not factors:
             row[...] = 1.0
         elif len(factors) == 1:
