@@ -82,20 +82,28 @@ def violation_details(model, group, *, time_reversal: bool = False, samples=16, 
     """Like :func:`symmetry_violations`, with the momentum of the largest violation of each operation."""
     ks = _sample(model, samples, seed)
     h = model.hamiltonian(ks)
+    ops = _operations(group)
+    mats, images = [], []
+    for op in ops:
+        mats.append(model.symmetry_matrix(op, ks))
+        images.append(np.asarray(op.acts_on_k(ks, model.lattice), dtype=float))
+    u_t = None
+    if time_reversal:
+        u_t = model.time_reversal_matrix()
+        if u_t is None:
+            raise SymmetryBreakingError("time reversal was asked for, but the model defines no time-reversal matrix")
+        images.append(-ks)
+    # H at every image momentum in one batch (one call per operation costs more than the sample itself)
+    h_images = model.hamiltonian(np.concatenate(images)).reshape((len(images),) + h.shape) if images else h[None]
     out: dict[str, Violation] = {}
-    for op in _operations(group):
-        d = model.symmetry_matrix(op, ks)
-        h_g = model.hamiltonian(np.asarray(op.acts_on_k(ks, model.lattice), dtype=float))
+    for op, d, h_g in zip(ops, mats, h_images):
         lhs = d @ h @ np.conj(np.swapaxes(d, -1, -2))
         rel = _relative(lhs - h_g, h, h_g)
         worst = int(np.argmax(rel))
         out[op.label] = Violation(op.label, float(rel[worst]), ks[worst])
     if time_reversal:
-        u_t = model.time_reversal_matrix()
-        if u_t is None:
-            raise SymmetryBreakingError("time reversal was asked for, but the model defines no time-reversal matrix")
         u_t = np.asarray(u_t, dtype=complex)
-        h_minus = model.hamiltonian(-ks)
+        h_minus = h_images[-1]
         lhs = u_t @ np.conj(h) @ u_t.conj().T
         rel = _relative(lhs - h_minus, h, h_minus)
         worst = int(np.argmax(rel))
