@@ -663,14 +663,18 @@ def _dislocation(prep, form0, spec, b, size, separation, core, *, line, kind, le
         if core is None:  # a plaquette centre near the middle
             c1 = (np.floor(c1 @ np.linalg.inv(lat_t)) + 0.5) @ lat_t
         c2 = c1 + sep * uhat
-        # the cut must stay inside the supercell's home cell and the cores apart from their periodic images
+        # the cut must stay inside the supercell's home cell (bonds are routed in the source's unwrapped frame),
+        # and each core this far from its partner and from the partner's periodic image
         corners = np.array([c1, c2, c1 + (b_t if kind == "edge" else 0), c2 + (b_t if kind == "edge" else 0)])
         red = corners @ np.linalg.inv(lat_t)
-        margin = MIN_MARGIN * np.linalg.norm(np.linalg.inv(lat_t), axis=0)
-        if np.any(red < margin) or np.any(red > extent - margin) or sep < 2 * MIN_MARGIN:
+        reach = 1.5 + float(np.abs(form.cells).max())
+        shifts = np.array([(i, j) for i in (-1, 0, 1) for j in (-1, 0, 1) if i or j]) @ (extent * lat_t)
+        image_gap = float(np.min(np.linalg.norm(c2 + shifts - c1, axis=1)))
+        if np.any(red < reach) or np.any(red > extent - reach) or min(sep, image_gap) < MIN_MARGIN:
             raise DefectGeometryError(f"a {extent} × {extent} supercell is too small for a dislocation dipole "
-                                      f"{sep:g} apart (keep {MIN_MARGIN:g} cells between the cores, the cut and the "
-                                      "supercell's edges): enlarge size or shrink separation")
+                                      f"{sep:g} apart (the cut must stay {reach:g} cells inside the supercell and the "
+                                      f"cores {MIN_MARGIN:g} apart, also across the periodic boundary): enlarge size "
+                                      "or change separation")
         cut_length = sep
         wrap = (extent, extent) + ((length,) if dim == 3 else ())
     else:

@@ -91,11 +91,45 @@ def states_near(sample: Sample, energy: float | None = None, count: int = 20, *,
         driver = "eigs (Arnoldi)" if np.iscomplexobj(h.data) else "eigsh (Lanczos)"
         method = (f"shift-invert {driver} of scipy.sparse.linalg, sigma = {sigma:.6g}; sparse LU of H − sigma in "
                   "nested-dissection order; Rayleigh–Ritz with H on the converged vectors")
+    energies, vectors = _separate_degenerate(sample, energies, vectors, core_radius, tol=1e-3 * sample.gap.width)
     core_w, edge_w = localisation(sample, vectors, core_radius=core_radius, edge_width=edge_width)
     gap = sample.gap
     in_gap = (energies > gap.valence_top) & (energies < gap.conduction_bottom)
     return NearStates(_ro(energies), _ro(vectors), target, _ro(core_w), _ro(edge_w), float(core_radius),
                       float(edge_width), _ro(in_gap), gap, method)
+
+
+def _separate_degenerate(sample: Sample, energies, vectors, core_radius: float, tol: float):
+    """Within each (quasi-)degenerate level, the basis that diagonalises the weight near the cores.
+
+    A core state and a boundary state at the same energy (zero modes of each, say) hybridise in a finite sample
+    and come out as 50/50 mixtures split by their tunnelling ``δ``; within a cluster of levels closer than ``tol``
+    (1e-3 of the bulk gap) this rotates to the states that are as much at one core, or as little, as the cluster
+    allows, with their mean energies (exact eigenstates up to ``δ``).
+    """
+    if not sample.cores:
+        return energies, vectors
+    # weight 1, 2, ... on the states near core 0, 1, ... (each state to its nearest core): the eigenvectors of this
+    # operator within a cluster separate the cores from each other as well as from the rest
+    nearest = np.argmin(sample.core_distance, axis=0)
+    near = sample.distance_to_cores() < core_radius
+    label = np.where(near, nearest + 1.0, 0.0)
+    out = np.array(vectors, dtype=complex)
+    e_out = np.array(energies, dtype=float)
+    start = 0
+    while start < len(energies):
+        stop = start + 1
+        while stop < len(energies) and energies[stop] - energies[stop - 1] < tol:
+            stop += 1
+        if stop - start > 1:
+            block = out[:, start:stop]
+            weight = block.conj().T @ (label[:, None] * block)
+            _, rot = np.linalg.eigh(0.5 * (weight + weight.conj().T))
+            out[:, start:stop] = block @ rot[:, ::-1]
+            e_out[start:stop] = np.real(np.einsum("ij,ij->j", out[:, start:stop].conj(),
+                                                  sample.hamiltonian @ out[:, start:stop]))
+        start = stop
+    return e_out, out
 
 
 def _shift_invert(h, count: int, sigma: float, tol: float, positions: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
