@@ -282,8 +282,10 @@ class PointGroup:
             generators=_greedy_generators(ops),
         )
         for setting in settings_of(symbol):
-            standard = point_group(setting)
-            if standard.approx_equal(candidate, tol):
+            # compared with the float closure of the setting's generators: the exact group (a sympy closure,
+            # half a second for m-3m) is not needed to recognise the orientation
+            standard = _standard_matrices(setting)
+            if len(standard) == candidate.order and _same_matrix_sets(standard, candidate._stack, tol):
                 return _with_setting(candidate, setting, np.eye(3))
         return candidate
 
@@ -429,11 +431,40 @@ def _with_setting(group: PointGroup, setting: str, frame: np.ndarray) -> PointGr
 # helpers
 
 
+#: trace of the proper part of a crystallographic operation -> the fold n of its rotation by 2π/n
+_FOLD_OF_TRACE = {3: 1, -1: 2, 0: 3, 1: 4, 2: 6}
+
+
+def _type_symbol_of(matrix: np.ndarray) -> str:
+    """ITA type symbol of a crystallographic operation from its float matrix (det and trace only)."""
+    det = 1 if np.linalg.det(matrix) > 0 else -1
+    fold = _FOLD_OF_TRACE[int(round(float(np.trace(det * matrix))))]
+    if det == 1:
+        return "1" if fold == 1 else str(fold)
+    return {1: "-1", 2: "m"}.get(fold, f"-{fold}")
+
+
+@lru_cache(maxsize=None)
+def _standard_matrices(setting: str) -> np.ndarray:
+    """Float matrices of a catalogue setting in the standard frame, closed from its generators in floats."""
+    return np.array(_span([to_float(m) for m in entry(setting).generator_matrices()]))
+
+
+def _same_matrix_sets(a: np.ndarray, b: np.ndarray, tol: float) -> bool:
+    """True if every matrix of each stack is within ``tol`` of one of the other (as PointGroup.approx_equal)."""
+    distance = np.abs(a[:, None] - b[None, :]).max(axis=(2, 3))
+    return bool(np.all(distance.min(axis=1) <= tol) and np.all(distance.min(axis=0) <= tol))
+
+
 @lru_cache(maxsize=1)
 def _classes_by_type_counts() -> dict[tuple[int, ...], str]:
-    # Derived from the catalogue itself, so identification always agrees with point_group(); the tests
-    # check these counts against the ITA tables independently.
-    table = {type_count_key(op.type_symbol for op in group): group.symbol for group in all_point_groups()}
+    # Derived from the catalogue itself, so identification always agrees with point_group(): the generators
+    # of each class closed in floats (the exact closure of all 32 groups in sympy took about a second on the
+    # first report of a process). The tests check these counts against the ITA tables and the exact groups.
+    table = {}
+    for symbol in CLASS_SYMBOLS:
+        elements = _standard_matrices(normalize_symbol(symbol))
+        table[type_count_key(_type_symbol_of(m) for m in elements)] = symbol
     if len(table) != len(CLASS_SYMBOLS):  # pragma: no cover - a property of the 32 classes
         raise AssertionError("operation-type counts do not distinguish the 32 classes")
     return table

@@ -10,6 +10,7 @@ from hypothesis import strategies as st
 
 from crystaltop.errors import ShapeError, UnknownGroupError, UnknownOperationError
 from crystaltop.symmetry import PointGroup, point_group
+from crystaltop.symmetry.catalogue import normalize_symbol
 
 from .strategies import ALL_SETTINGS, rotations, symbols
 
@@ -183,3 +184,24 @@ def test_orienting_by_the_identity_changes_nothing(symbol):
     group = point_group(symbol)
     same = group.oriented(np.eye(3))
     assert [op.label for op in same] == [op.label for op in group] and same.approx_equal(group, 0.0)
+
+
+def test_class_identification_table_equals_the_one_counted_from_the_exact_groups():
+    # the table used by from_matrices and the little co-groups is derived from float closures of the
+    # generators; it must agree with the operation types of the exactly closed groups
+    from crystaltop.symmetry import groups
+    from crystaltop.symmetry.catalogue import type_count_key
+
+    exact = {type_count_key(op.type_symbol for op in g): g.symbol for g in groups.all_point_groups()}
+    assert groups._classes_by_type_counts() == exact
+
+
+@pytest.mark.parametrize("setting", ALL_SETTINGS)
+def test_float_closure_of_each_setting_has_the_matrices_of_the_exact_group(setting):
+    # from_matrices recognises a catalogue setting by this float closure instead of building the exact group
+    from crystaltop.symmetry import groups
+
+    exact = point_group(setting)
+    floats = groups._standard_matrices(normalize_symbol(setting))
+    assert len(floats) == exact.order
+    assert groups._same_matrix_sets(floats, exact.matrices, 1e-12)
