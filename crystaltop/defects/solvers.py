@@ -24,7 +24,7 @@ __all__ = ["NearStates", "states_near", "local_density", "localisation", "Occupi
            "BoundCharge", "bound_charge", "region_charge", "DefectMeasurement", "measure_defect"]
 
 #: Largest sample diagonalised densely by ``method="auto"``.
-DENSE_LIMIT = 4000
+DENSE_LIMIT = 2500
 #: Distance (lattice constants) a disc keeps from the open boundary.
 DISC_MARGIN = 3.0
 
@@ -267,7 +267,8 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
     degeneracy_tol : float, optional
         Default ``1e-3`` of the bulk gap (corner modes of a flake split by e^{−L/ξ}, far below it).
     smoothing : float, optional
-        Chebyshev: width ``w`` of the smoothed step (default 1/8 of the bulk gap).
+        Chebyshev: width ``w`` of the smoothed step. Default: 1/8 of the bulk gap, halved (at most twice) while the
+        error bound summed over the region exceeds 1e-3, i.e. while an in-gap state lies within a few ``w`` of E_F.
     """
     h = sample.hamiltonian
     n = h.shape[0]
@@ -301,9 +302,15 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
     if electrons is not None:
         raise DefectGeometryError("electrons= needs the exact method; give a fermi_energy for the Chebyshev method")
     w = sample.gap.width / 8.0 if smoothing is None else float(smoothing)
-    expansion = chebyshev_expansion(spectral_bounds(h), e_f, w, tol=tol)
     idx = np.flatnonzero(mask)
-    rho, err, reach = local_occupation(h, idx, expansion)
+    bounds = spectral_bounds(h)
+    for attempt in range(3):
+        expansion = chebyshev_expansion(bounds, e_f, w, tol=tol)
+        rho, err, reach = local_occupation(h, idx, expansion)
+        # an in-gap state within a few w of E_F is partly occupied by the smoothed step: narrow it (unless given)
+        if smoothing is not None or err.sum() < 1e-3 or attempt == 2:
+            break
+        w /= 2.0
     density = np.full(n, np.nan)
     error = np.full(n, np.nan)
     density[idx], error[idx] = rho, err
