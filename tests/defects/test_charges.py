@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 
 from crystaltop.defects import (bound_charge, disclination, disclination_dipole, edge_dislocation, flake,
-                                occupied_density, region_charge)
+                                measure_defect, occupied_density, region_charge)
 from crystaltop.errors import DefectGeometryError
 from crystaltop.examples import benalcazar_bernevig_hughes, c4_breathing_square
 from crystaltop.examples.obstructed_limits import kekule_honeycomb
@@ -169,3 +169,11 @@ def test_the_charge_is_reported_with_its_radius_dependence():
     assert charge.charge.shape == (4,)
     assert abs(charge.charge[-1] - 0.25) < abs(charge.charge[0] - 0.25)  # converges with the radius
     assert "exact diagonalisation" in charge.method
+
+
+def test_measure_defect_gives_states_and_charge_per_core():
+    sample = disclination(c4_breathing_square(gamma=0.3), np.pi / 2, 14, core="1b", filling=1, ions=ONE_AT_1A)
+    measured = measure_defect(sample, count=6)
+    assert len(measured.charges) == 1 and len(measured.bound_states) == 1
+    assert mod1(measured.charges[0].value - 0.25) < 5e-3
+    assert measured.states.energies.shape == (6,)
