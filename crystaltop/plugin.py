@@ -27,7 +27,7 @@ from typing import Any, Mapping
 
 import pluggy
 
-from .bands import BandData, batched_det
+from .bands import BandData, batched_det, hermitian_eigh, link_matrices
 from .errors import NotApplicable
 from .kspace import Grid, line, plane, trims, uniform_mesh
 from .kspace import high_symmetry as _high_symmetry
@@ -46,6 +46,8 @@ __all__ = [
     "NotApplicable",
     "BandData",
     "batched_det",
+    "hermitian_eigh",
+    "link_matrices",
     "Grid",
     "uniform_mesh",
     "plane",

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["ordered_product", "link_matrices", "unitary_part", "batched_det"]
+__all__ = ["ordered_product", "link_matrices", "unitary_part", "batched_det", "hermitian_eigh"]
 
 
 def ordered_product(mats: np.ndarray, axis: int) -> np.ndarray:
@@ -85,3 +85,30 @@ def batched_det(mats: np.ndarray) -> np.ndarray:
     if m == 2:
         return mats[..., 0, 0] * mats[..., 1, 1] - mats[..., 0, 1] * mats[..., 1, 0]
     return np.linalg.det(mats)
+
+
+def hermitian_eigh(mats: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Eigenvalues (ascending) and orthonormal eigenvectors (columns) of a stack of Hermitian matrices.
+
+    Closed form for 2x2 (LAPACK's per-matrix overhead is most of the cost of a batch of tiny matrices),
+    ``numpy.linalg.eigh`` otherwise. The phase of each eigenvector is arbitrary (it may differ from eigh's).
+    """
+    if mats.shape[-1] != 2:
+        return np.linalg.eigh(mats)
+    p, r = mats[..., 0, 0].real, mats[..., 1, 1].real
+    q = 0.5 * (mats[..., 0, 1] + np.conj(mats[..., 1, 0]))
+    mean, half = 0.5 * (p + r), 0.5 * (p - r)
+    root = np.hypot(half, np.abs(q))
+    values = np.stack([mean - root, mean + root], axis=-1)
+    # eigenvector of the lower eigenvalue from the better-conditioned row of (a - λ) x = 0
+    first = half >= 0
+    x1 = np.where(first, q, half - root)
+    x2 = np.where(first, -(half + root), np.conj(q))
+    norm = np.sqrt(np.abs(x1) ** 2 + np.abs(x2) ** 2)
+    flat = norm <= 1e-300  # a multiple of the identity: any basis
+    norm = np.where(flat, 1.0, norm)
+    x1, x2 = np.where(flat, 1.0, x1 / norm), np.where(flat, 0.0, x2 / norm)
+    vectors = np.empty(mats.shape, dtype=complex)
+    vectors[..., 0, 0], vectors[..., 1, 0] = x1, x2
+    vectors[..., 0, 1], vectors[..., 1, 1] = -np.conj(x2), np.conj(x1)  # the orthogonal complement
+    return values, vectors

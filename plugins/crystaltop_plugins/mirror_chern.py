@@ -25,8 +25,8 @@ from __future__ import annotations
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, MeshTooCoarseError, NotApplicable, SymmetryBreakingError
-from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, batched_det, hookimpl, mirror_planes,
-                               plane, uniform_mesh)
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, batched_det, hermitian_eigh, hookimpl,
+                               link_matrices, mirror_planes, plane, uniform_mesh)
 
 #: largest plaquette phase accepted, in units of π (as for the Chern number)
 CONVERGED = 0.35
@@ -41,8 +41,7 @@ def fhs_chern(states: np.ndarray) -> tuple[int, float, float]:
     if states.shape[-1] == 0:
         return 0, 0.0, 0.0
     def link(axis):
-        nxt = np.roll(states, -1, axis=axis)
-        u = batched_det(np.conj(np.swapaxes(states, -1, -2)) @ nxt)
+        u = batched_det(link_matrices(states, axis))
         return u / np.abs(u)
     u1, u2 = link(0), link(1)
     f = np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
@@ -161,7 +160,7 @@ class MirrorChern(Invariant):
             raise SymmetryBreakingError(f"mirror {op.label} squares to {c:.3f}, not ±1, on the occupied states")
         a = s / lam0
         a = 0.5 * (a + np.conj(np.swapaxes(a, -1, -2)))
-        w, u = np.linalg.eigh(a)
+        w, u = hermitian_eigh(a)  # closed form for two occupied states (one Kramers pair, the common case)
         n_minus = np.count_nonzero(w < 0, axis=-1)
         if n_minus.min() != n_minus.max():
             lo = np.unravel_index(int(np.argmin(n_minus)), n_minus.shape)
