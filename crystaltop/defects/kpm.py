@@ -84,11 +84,14 @@ def chebyshev_expansion(bounds: tuple[float, float], fermi_energy: float, smooth
         c = chebyshev.chebinterpolate(step, deg)
         g = chebyshev.chebinterpolate(window, deg)
         mags = np.abs(c) + np.abs(g)
+        floor = mags < 1e-12  # the interpolation's rounding floor, which would otherwise add up over the tail
+        mags[floor] = 0.0
         tail = np.cumsum(mags[::-1])[::-1]  # tail[n] = Σ_{j ≥ n}
         below = np.flatnonzero(tail < tol)
         if below.size and below[0] < deg // 2:
             n = int(below[0])
-            return ChebyshevExpansion(b, a, float(fermi_energy), w, c[:n].copy(), g[:n].copy(), float(tail[n]))
+            bound = float(tail[n]) + 1e-12 * int(floor[n:].sum())  # the dropped floor counted at its ceiling
+            return ChebyshevExpansion(b, a, float(fermi_energy), w, c[:n].copy(), g[:n].copy(), bound)
         if deg >= max_moments:
             raise DefectGeometryError(f"the Fermi step of width {w:.3g} needs more than {max_moments} Chebyshev "
                                       "moments on this spectrum: widen the smoothing or shrink the bandwidth")
