@@ -95,5 +95,12 @@ def act_on_reduced_k(w: np.ndarray, k: np.ndarray) -> np.ndarray:
     karr = np.asarray(k, dtype=float)
     if karr.ndim == 0 or karr.shape[-1] != dim:
         raise ShapeError(f"k must have shape (..., {dim}) for a {dim}D lattice, got {karr.shape}")
-    w_inv = np.rint(np.linalg.inv(w.astype(float)))
-    return karr @ w_inv
+    return karr @ _integer_inverse(np.ascontiguousarray(w, dtype=float).tobytes(), dim)
+
+
+@lru_cache(maxsize=4096)
+def _integer_inverse(w_bytes: bytes, dim: int) -> np.ndarray:
+    # memoised like matrix_in_basis: the same few operations act on momenta many times per report
+    w_inv = np.rint(np.linalg.inv(np.frombuffer(w_bytes, dtype=float).reshape(dim, dim)))
+    w_inv.setflags(write=False)
+    return w_inv
