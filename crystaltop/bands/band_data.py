@@ -151,6 +151,29 @@ class BandData:
         total = flat_k.shape[0]
         # in chunks of about CHUNK_BYTES of H, so that H(k) is built, checked and diagonalised while in cache
         step = max(1, min(total, self.CHUNK_BYTES // (16 * n * n)))
+        if step >= total:  # one chunk: eigh's own arrays are the result (no copy)
+            energies, vectors = self._eigh(flat_k)
+        else:
+            energies, vectors = self._eigh_in_chunks(flat_k, step, what)
+        if self._gauge_rng is not None:
+            vectors *= np.exp(2j * np.pi * self._gauge_rng.random(energies.shape))[:, None, :]
+        self.stats.k_points += total
+        self.stats.batches.append((what, total))
+        return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
+
+    def _eigh(self, kc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)``."""
+        n = self.model.n_states
+        h = np.asarray(self.model.hamiltonian(kc))
+        if h.shape != (kc.shape[0], n, n):
+            raise ShapeError(f"H(k) returned shape {h.shape}, expected {(kc.shape[0], n, n)}")
+        if not getattr(self.model, "hermitian_by_construction", False):
+            self._check_hermitian(h, kc)
+        return np.linalg.eigh(h)
+
+    def _eigh_in_chunks(self, flat_k: np.ndarray, step: int, what: str) -> tuple[np.ndarray, np.ndarray]:
+        n = self.model.n_states
+        total = flat_k.shape[0]
         energies = np.empty((total, n))
         vectors = np.empty((total, n, n), dtype=complex)
         starts = range(0, total, step)
@@ -162,18 +185,8 @@ class BandData:
             except ImportError:  # progress is a convenience, never a requirement
                 pass
         for start in starts:  # a handful of large batches, not a loop over k-points
-            kc = flat_k[start:start + step]
-            h = np.asarray(self.model.hamiltonian(kc))
-            if h.shape != (kc.shape[0], n, n):
-                raise ShapeError(f"H(k) returned shape {h.shape}, expected {(kc.shape[0], n, n)}")
-            if not getattr(self.model, "hermitian_by_construction", False):
-                self._check_hermitian(h, kc)
-            energies[start:start + step], vectors[start:start + step] = np.linalg.eigh(h)
-        if self._gauge_rng is not None:
-            vectors *= np.exp(2j * np.pi * self._gauge_rng.random(energies.shape))[:, None, :]
-        self.stats.k_points += total
-        self.stats.batches.append((what, total))
-        return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
+            energies[start:start + step], vectors[start:start + step] = self._eigh(flat_k[start:start + step])
+        return energies, vectors
 
     def _check_hermitian(self, h: np.ndarray, k: np.ndarray) -> None:
         """NonHermitianError naming the worst k-point if |H − H†| exceeds the tolerance anywhere."""
@@ -431,3 +444,41 @@ class BandData:
         """Eigenvalues of :meth:`symmetry_representation`, sorted by phase angle."""
         lam = np.linalg.eigvals(self.symmetry_representation(op, k))
         return lam[np.argsort(np.angle(lam), kind="stable")]
+
+    def symmetry_representations(self, op, ks, *, tol: float = 1e-6) -> np.ndarray:
+        """:meth:`symmetry_representation` at every row of ``ks`` ``(m, dim)``, formed in one batch: ``(m, f, f)``.
+
+        If a check fails at some momentum, the momenta are taken one by one from the first, so the error
+        (and what was recorded before it) is exactly that of :meth:`symmetry_representation` in a loop.
+        """
+        ks = np.asarray(ks, dtype=float).reshape(-1, self.model.dim)
+        keys = [(op.label, np.asarray(op.matrix, dtype=float).tobytes(), k.tobytes(), float(tol)) for k in ks]
+        todo = [i for i, key in enumerate(keys) if key not in self._representations]
+        if todo:
+            sub = ks[todo]
+            gk = np.asarray(op.acts_on_k(sub, self.model.lattice), dtype=float)
+            shift = gk - sub
+            e, v = self.at(sub)
+            g = e[:, self.filling] - e[:, self.filling - 1]
+            fine = np.max(np.abs(shift - np.round(shift))) <= 1e-8 and g.min() >= self.gap_tol
+            if fine:
+                v = v[..., : self.filling]
+                d = np.asarray(self.model.symmetry_matrix(op, sub))
+                mats = np.conj(np.swapaxes(v, -1, -2)) @ d @ v
+                dev = np.linalg.norm(np.conj(np.swapaxes(mats, -1, -2)) @ mats - np.eye(self.filling), axis=(-1, -2))
+                fine = dev.max() <= tol
+            if not fine:
+                return np.array([self.symmetry_representation(op, k, tol=tol) for k in ks])
+            for i, mat, gap in zip(todo, mats, g):
+                self._representations[keys[i]] = (mat, float(gap))
+        out = []
+        for key in keys:  # each momentum's gap counts for the caller, as in the loop
+            mat, gap = self._representations[key]
+            self.gap_log.append(gap)
+            out.append(mat)
+        return np.array(out)
+
+    def symmetry_eigenvalues_at(self, op, ks) -> list[np.ndarray]:
+        """:meth:`symmetry_eigenvalues` at every row of ``ks`` (one batch; errors as in a loop)."""
+        lam = np.linalg.eigvals(self.symmetry_representations(op, ks))
+        return [row[np.argsort(np.angle(row), kind="stable")] for row in lam]

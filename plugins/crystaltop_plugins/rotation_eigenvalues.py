@@ -51,6 +51,15 @@ def occupied_eigenvalues(bands, op, momentum) -> np.ndarray:
                                     "symmetry of the model") from None
 
 
+def occupied_eigenvalues_at(bands, op, momenta) -> list[np.ndarray]:
+    """:func:`occupied_eigenvalues` at several momenta in one batch; on a failure the momenta are taken one by
+    one, so the error names the first momentum where it occurs."""
+    try:
+        return bands.symmetry_eigenvalues_at(op, np.array([m.k for m in momenta], dtype=float))
+    except (GapClosedError, SymmetryBreakingError):
+        return [occupied_eigenvalues(bands, op, m) for m in momenta]
+
+
 def is_time_reversal_invariant(k) -> bool:
     k2 = 2.0 * np.asarray(k, dtype=float)
     return bool(np.all(np.abs(k2 - np.rint(k2)) < 1e-9))
@@ -144,8 +153,7 @@ class RotationEigenvalues(Invariant):
             entry, raw = {}, {}
             fixed = [m for m in momenta if op.label in m.rotations]
             power = None
-            for m in fixed:
-                lam = occupied_eigenvalues(bands, op, m)
+            for m, lam in zip(fixed, occupied_eigenvalues_at(bands, op, fixed) if fixed else []):
                 eig[(op.label, m.label)] = lam
                 here = rotation_power(lam, n, what=f"{op.label} at {m.label}")
                 if power is not None and here != power:
