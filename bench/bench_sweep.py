@@ -1,6 +1,6 @@
 """Benchmark: the speed-up of a sweep on 2 worker processes against a serial run.
 
-    python bench/bench_sweep.py [--points 48] [--mesh 96] [--repeats 3]
+    python bench/bench_sweep.py [--points 64] [--mesh 240] [--repeats 3]
 
 A Haldane-model phase diagram (Phys. Rev. Lett. 61, 2015 (1988)) over the sublattice mass M and the flux
 phase φ, the Chern number at each point on a mesh×mesh grid. It runs serially, then on a
@@ -36,8 +36,8 @@ def run(executor_factory, grid, mesh):
 
 def main():
     ap = argparse.ArgumentParser()
-    ap.add_argument("--points", type=int, default=48)
-    ap.add_argument("--mesh", type=int, default=96)
+    ap.add_argument("--points", type=int, default=64)
+    ap.add_argument("--mesh", type=int, default=240)
     ap.add_argument("--repeats", type=int, default=3)
     args = ap.parse_args()
     side = int(np.sqrt(args.points))
