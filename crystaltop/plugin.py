@@ -27,7 +27,7 @@ from typing import Any, Mapping
 
 import pluggy
 
-from .bands import BandData, batched_det, hermitian_eigh, link_matrices
+from .bands import BandData, batched_det, hermitian_eigh, link_determinants, link_matrices
 from .errors import NotApplicable
 from .kspace import Grid, line, plane, trims, uniform_mesh
 from .kspace import high_symmetry as _high_symmetry
@@ -47,6 +47,7 @@ __all__ = [
     "BandData",
     "batched_det",
     "hermitian_eigh",
+    "link_determinants",
     "link_matrices",
     "Grid",
     "uniform_mesh",

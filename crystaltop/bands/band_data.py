@@ -9,13 +9,14 @@ from __future__ import annotations
 
 import sys
 from dataclasses import dataclass, field
+from math import comb
 
 import numpy as np
 
 from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
 from ..kspace import Grid
 from ..models.base import format_k
-from .products import batched_det, link_matrices, ordered_product
+from .products import PLUCKER_LIMIT, link_determinants, link_matrices, ordered_product, plucker_coordinates
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
@@ -138,6 +139,8 @@ class BandData:
         self._gaps: dict[Grid, tuple[float, np.ndarray]] = {}
         # single points asked for again (high-symmetry momenta, by several invariants): by their exact bytes
         self._single: dict[bytes, tuple[np.ndarray, np.ndarray]] = {}
+        # Plücker coordinates of the occupied states per grid (shared by the link determinants of every axis)
+        self._minors: dict[Grid, np.ndarray] = {}
         # occupied-subspace representations already formed: (operation, k) -> (matrix, gap at k)
         self._representations: dict[tuple, tuple[np.ndarray, float]] = {}
         #: every gap checked, in order (the dispatcher reads the part each invariant added)
@@ -389,6 +392,24 @@ class BandData:
             phase = np.asarray(self.model.position_phase(dk))
         return link_matrices(occ, axis, phase)
 
+    def link_determinants(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
+        """``det`` of the link matrices of :meth:`links`, shape ``(*shape,)`` (from Plücker coordinates of the
+        occupied states where that is cheaper, see :func:`crystaltop.bands.products.link_determinants`)."""
+        if not grid.periodic[axis]:
+            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
+        occ = self.occupied(grid)
+        phase = None
+        if embed:
+            dk = np.zeros(self.model.dim)
+            dk[axis] = 1.0 / grid.shape[axis]
+            phase = np.asarray(self.model.position_phase(dk))
+        minors = None
+        if comb(*occ.shape[-2:]) <= PLUCKER_LIMIT:
+            minors = self._minors.get(grid)
+            if minors is None:
+                minors = self._minors[grid] = plucker_coordinates(occ)
+        return link_determinants(occ, axis, phase, minors=minors)
+
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""
         return ordered_product(self.links(grid, axis, embed=True), axis)
@@ -399,7 +420,7 @@ class BandData:
         The determinant is multiplicative, so it is the product of the link determinants along the loop: the
         sum of the Wannier centres (Berry phase) without forming the loops themselves.
         """
-        return np.prod(batched_det(self.links(grid, axis, embed=True)), axis=axis)
+        return np.prod(self.link_determinants(grid, axis, embed=True), axis=axis)
 
     def wannier_centres(self, grid: Grid, axis: int) -> np.ndarray:
         """Hybrid Wannier centres along ``axis`` in ``[0, 1)`` (reduced units), sorted, ``(*other_shape, m)``.

@@ -2,9 +2,16 @@
 
 from __future__ import annotations
 
+from itertools import combinations
+from math import comb
+
 import numpy as np
 
-__all__ = ["ordered_product", "link_matrices", "unitary_part", "batched_det", "hermitian_eigh"]
+__all__ = ["ordered_product", "link_matrices", "link_determinants", "plucker_coordinates", "unitary_part",
+           "batched_det", "hermitian_eigh"]
+
+#: largest number of m x m minors for which link determinants are formed from Plücker coordinates
+PLUCKER_LIMIT = 64
 
 
 def ordered_product(mats: np.ndarray, axis: int) -> np.ndarray:
@@ -53,10 +60,9 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     axis = axis + vectors.ndim if axis < 0 else axis  # as numpy counts it (a negative axis from the end)
     ket = vectors
     if phase is not None:
-        phase = np.asarray(phase)
-        diagonal = np.diagonal(phase)
+        diagonal = _diagonal_of(phase)
         # P is diagonal in a site basis: a scaling of the rows instead of a product per k-point
-        ket = diagonal[:, None] * vectors if not np.any(phase - np.diag(diagonal)) else phase @ vectors
+        ket = diagonal[:, None] * vectors if diagonal is not None else np.asarray(phase) @ vectors
     bra = np.conj(np.swapaxes(vectors, -1, -2))
     m = vectors.shape[-1]
     out = np.empty(vectors.shape[:-2] + (m, m), dtype=np.result_type(vectors, ket))
@@ -68,6 +74,63 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     # <u(k)| with P|u(k + dk)>, the last point linked to the first, without a rolled copy of the states
     np.matmul(bra[part(0, n - 1)], ket[part(1, n)], out=out[part(0, n - 1)])
     np.matmul(bra[part(n - 1, n)], ket[part(0, 1)], out=out[part(n - 1, n)])
+    return out
+
+
+def _diagonal_of(phase) -> np.ndarray | None:
+    """The diagonal of ``phase`` if it is a diagonal matrix, else None."""
+    phase = np.asarray(phase)
+    diagonal = np.diagonal(phase)
+    return None if np.any(phase - np.diag(diagonal)) else diagonal
+
+
+def plucker_coordinates(vectors: np.ndarray) -> np.ndarray:
+    """The ``m x m`` minors of each ``(n, m)`` matrix, one per set of ``m`` rows in lexicographic order.
+
+    Returns an array of shape ``(..., C(n, m))``: the Plücker coordinates of the span of the columns.
+    """
+    n, m = vectors.shape[-2:]
+    if m == 1:
+        return vectors[..., :, 0].copy()
+    subsets = list(combinations(range(n), m))
+    if m == 2:
+        out = np.empty(vectors.shape[:-2] + (len(subsets),), dtype=vectors.dtype)
+        for s, (i, j) in enumerate(subsets):
+            out[..., s] = vectors[..., i, 0] * vectors[..., j, 1] - vectors[..., j, 0] * vectors[..., i, 1]
+        return out
+    return batched_det(vectors[..., np.array(subsets), :])
+
+
+def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None, *,
+                      minors: np.ndarray | None = None) -> np.ndarray:
+    """``det <u(k)| P |u(k + dk)>`` between neighbours along a periodic grid axis, shape ``(*grid,)``.
+
+    By the Cauchy–Binet formula the determinant of ``V(k)^† P V(k + dk)`` is ``Σ_S conj(μ_S(k)) φ_S μ_S(k + dk)``
+    over the sets ``S`` of ``m`` rows, with ``μ`` the Plücker coordinates (:func:`plucker_coordinates`) and
+    ``φ_S`` the product of the diagonal of ``P`` over ``S``. That is a few multiplications per k-point instead of
+    a matrix product and a determinant, and ``μ`` serves every axis (pass it as ``minors``). Used when ``P`` is
+    diagonal (or absent) and there are at most :data:`PLUCKER_LIMIT` sets; otherwise the determinants of
+    :func:`link_matrices`. Equal to those up to rounding.
+    """
+    axis = axis + vectors.ndim if axis < 0 else axis
+    n, m = vectors.shape[-2:]
+    diagonal = None if phase is None else _diagonal_of(phase)
+    if comb(n, m) > PLUCKER_LIMIT or (phase is not None and diagonal is None):
+        return batched_det(link_matrices(vectors, axis, phase))
+    mu = plucker_coordinates(vectors) if minors is None else minors
+    bra = np.conj(mu)
+    ket = mu
+    if diagonal is not None:
+        phi = np.array([np.prod(diagonal[list(rows)]) for rows in combinations(range(n), m)])
+        ket = mu * phi
+    count = vectors.shape[axis]
+    out = np.empty(vectors.shape[:-2], dtype=np.result_type(bra, ket))
+
+    def part(start, stop):
+        return (slice(None),) * axis + (slice(start, stop),)
+
+    out[part(0, count - 1)] = np.einsum("...s,...s->...", bra[part(0, count - 1)], ket[part(1, count)])
+    out[part(count - 1, count)] = np.einsum("...s,...s->...", bra[part(count - 1, count)], ket[part(0, 1)])
     return out
 
 

@@ -25,8 +25,11 @@ SMALLEST_LINK = 1e-6
 def plaquette_phases(links1: np.ndarray, links2: np.ndarray) -> tuple[np.ndarray, float]:
     """F(k) on a periodic 2D mesh from the link matrices along its two axes (leading two dimensions),
     and the smallest |det| of a link (the phases are meaningless where it vanishes)."""
-    u1 = batched_det(links1)
-    u2 = batched_det(links2)
+    return plaquette_phases_of(batched_det(links1), batched_det(links2))
+
+
+def plaquette_phases_of(u1: np.ndarray, u2: np.ndarray) -> tuple[np.ndarray, float]:
+    """:func:`plaquette_phases` from the link determinants ``det U_1``, ``det U_2`` (leading two dimensions)."""
     a1, a2 = np.abs(u1), np.abs(u2)
     smallest = float(min(a1.min(), a2.min()))
     u1 = u1 / np.maximum(a1, 1e-300)
@@ -46,13 +49,13 @@ class ChernNumber(Invariant):
 
     def _plane_chern(self, bands, grid, axes) -> tuple[int, float, float]:
         a, b = axes
-        l1 = bands.links(grid, a, embed=False)
-        l2 = bands.links(grid, b, embed=False)
+        u1 = bands.link_determinants(grid, a, embed=False)
+        u2 = bands.link_determinants(grid, b, embed=False)
         # bring the two loop axes to the front, in order, dropping the fixed one
-        shape = (grid.shape[a], grid.shape[b]) + l1.shape[-2:]
-        l1 = np.moveaxis(l1, (a, b), (0, 1)).reshape(shape)
-        l2 = np.moveaxis(l2, (a, b), (0, 1)).reshape(shape)
-        f, smallest = plaquette_phases(l1, l2)
+        shape = (grid.shape[a], grid.shape[b])
+        u1 = np.moveaxis(u1, (a, b), (0, 1)).reshape(shape)
+        u2 = np.moveaxis(u2, (a, b), (0, 1)).reshape(shape)
+        f, smallest = plaquette_phases_of(u1, u2)
         total = -float(f.sum()) / (2 * np.pi)
         worst = float(np.max(np.abs(f)) / np.pi)
         if smallest < SMALLEST_LINK:  # a vanishing link: not converged whatever the phases say

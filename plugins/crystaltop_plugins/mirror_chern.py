@@ -25,8 +25,8 @@ from __future__ import annotations
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, MeshTooCoarseError, NotApplicable, SymmetryBreakingError
-from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, batched_det, hermitian_eigh, hookimpl,
-                               link_matrices, mirror_planes, plane, uniform_mesh)
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, hermitian_eigh, hookimpl,
+                               link_determinants, mirror_planes, plane, uniform_mesh)
 
 #: largest plaquette phase accepted, in units of π (as for the Chern number)
 CONVERGED = 0.35
@@ -41,7 +41,7 @@ def fhs_chern(states: np.ndarray) -> tuple[int, float, float]:
     if states.shape[-1] == 0:
         return 0, 0.0, 0.0
     def link(axis):
-        u = batched_det(link_matrices(states, axis))
+        u = link_determinants(states, axis)
         return u / np.abs(u)
     u1, u2 = link(0), link(1)
     f = np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
