@@ -27,7 +27,7 @@ from typing import Any, Mapping
 
 import pluggy
 
-from .bands import BandData, batched_det, hermitian_eigh, link_determinants, link_matrices
+from .bands import BandData, batched_det, hermitian_eigh, link_determinants, link_matrices, link_minors
 from .errors import NotApplicable
 from .kspace import Grid, line, plane, trims, uniform_mesh
 from .kspace import high_symmetry as _high_symmetry
@@ -49,6 +49,7 @@ __all__ = [
     "hermitian_eigh",
     "link_determinants",
     "link_matrices",
+    "link_minors",
     "Grid",
     "uniform_mesh",
     "plane",

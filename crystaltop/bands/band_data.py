@@ -9,14 +9,13 @@ from __future__ import annotations
 
 import sys
 from dataclasses import dataclass, field
-from math import comb
 
 import numpy as np
 
 from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
 from ..kspace import Grid
 from ..models.base import format_k
-from .products import PLUCKER_LIMIT, link_determinants, link_matrices, ordered_product, plucker_coordinates
+from .products import link_determinants, link_matrices, link_minors, ordered_product
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
@@ -403,12 +402,9 @@ class BandData:
             dk = np.zeros(self.model.dim)
             dk[axis] = 1.0 / grid.shape[axis]
             phase = np.asarray(self.model.position_phase(dk))
-        minors = None
-        if comb(*occ.shape[-2:]) <= PLUCKER_LIMIT:
-            minors = self._minors.get(grid)
-            if minors is None:
-                minors = self._minors[grid] = plucker_coordinates(occ)
-        return link_determinants(occ, axis, phase, minors=minors)
+        if grid not in self._minors:
+            self._minors[grid] = link_minors(occ)
+        return link_determinants(occ, axis, phase, minors=self._minors[grid])
 
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""

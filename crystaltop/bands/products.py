@@ -7,8 +7,8 @@ from math import comb
 
 import numpy as np
 
-__all__ = ["ordered_product", "link_matrices", "link_determinants", "plucker_coordinates", "unitary_part",
-           "batched_det", "hermitian_eigh"]
+__all__ = ["ordered_product", "link_matrices", "link_determinants", "link_minors", "plucker_coordinates",
+           "unitary_part", "batched_det", "hermitian_eigh"]
 
 #: largest number of m x m minors for which link determinants are formed from Plücker coordinates
 PLUCKER_LIMIT = 64
@@ -99,6 +99,12 @@ def plucker_coordinates(vectors: np.ndarray) -> np.ndarray:
             out[..., s] = vectors[..., i, 0] * vectors[..., j, 1] - vectors[..., j, 0] * vectors[..., i, 1]
         return out
     return batched_det(vectors[..., np.array(subsets), :])
+
+
+def link_minors(vectors: np.ndarray) -> np.ndarray | None:
+    """The Plücker coordinates :func:`link_determinants` would form, to be shared between axes, or None
+    when it would use the link matrices instead (more than :data:`PLUCKER_LIMIT` minors)."""
+    return plucker_coordinates(vectors) if comb(*vectors.shape[-2:]) <= PLUCKER_LIMIT else None
 
 
 def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None, *,

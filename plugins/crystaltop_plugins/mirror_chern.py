@@ -26,7 +26,7 @@ import numpy as np
 
 from crystaltop.errors import CrystaltopError, MeshTooCoarseError, NotApplicable, SymmetryBreakingError
 from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, hermitian_eigh, hookimpl,
-                               link_determinants, mirror_planes, plane, uniform_mesh)
+                               link_determinants, link_minors, mirror_planes, plane, uniform_mesh)
 
 #: largest plaquette phase accepted, in units of π (as for the Chern number)
 CONVERGED = 0.35
@@ -40,8 +40,10 @@ def fhs_chern(states: np.ndarray) -> tuple[int, float, float]:
     """
     if states.shape[-1] == 0:
         return 0, 0.0, 0.0
+    minors = link_minors(states)  # shared by the links along both axes
+
     def link(axis):
-        u = link_determinants(states, axis)
+        u = link_determinants(states, axis, minors=minors)
         return u / np.abs(u)
     u1, u2 = link(0), link(1)
     f = np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
