@@ -20,8 +20,12 @@ from .products import link_determinants, link_matrices, link_minors, ordered_pro
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
 
-def _axis_table(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """The values of a grid axis sorted, and their positions on the axis (for :func:`_axis_match`)."""
+def _axis_table(values: np.ndarray) -> tuple:
+    """What :func:`_axis_match` needs of a grid axis: its size if it is the uniform mesh j/N, else its values
+    sorted and their positions on the axis."""
+    n = values.shape[0]
+    if n > 1 and np.abs(values - np.arange(n) / n).max() <= 1e-12:
+        return (n,)
     order = np.argsort(values, kind="stable")
     return values[order], order
 
@@ -29,8 +33,14 @@ def _axis_table(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def _axis_match(values: np.ndarray, table, tol: float = 1e-9) -> tuple[np.ndarray, np.ndarray]:
     """For each value, the index of an equal entry (mod 1) of a grid axis and whether there is one.
 
-    Binary search in the sorted axis: the nearest entry on the circle is the one just below or just above.
+    On the uniform mesh j/N by rounding v·N; otherwise by binary search in the sorted axis (the nearest entry on
+    the circle is the one just below or just above).
     """
+    if len(table) == 1:
+        n = table[0]
+        x = np.mod(values, 1.0) * n
+        j = np.rint(x)
+        return j.astype(int) % n, np.abs(x - j) <= tol * n
     ordered, order = table
     v = np.mod(values, 1.0)
     n = ordered.shape[0]
@@ -343,7 +353,8 @@ class BandData:
             e, _ = self.eigensystem(grid)
             g = e[..., self.filling] - e[..., self.filling - 1]
             j = np.unravel_index(int(np.argmin(g)), g.shape)
-            self._gaps[grid] = (float(g[j]), grid.points[j])
+            where = np.array([grid.axes[i][j[i]] for i in range(grid.dim)])  # that point of grid.points
+            self._gaps[grid] = (float(g[j]), where)
         return self._gaps[grid]
 
     def check_gap(self, grid: Grid) -> float:

@@ -71,34 +71,34 @@ class Grid:
         """Index arrays that pick this grid out of ``other``, or None if it is not a sub-grid."""
         if other.dim != self.dim:
             return None
-        picks = []
-        for mine, theirs, uniform, uniform_too in zip(self.axes, other.axes, self.periodic, other.periodic):
-            if uniform and uniform_too:  # j/N inside j/M: exactly when N divides M, every (M/N)-th value
+        picks = [None] * self.dim
+        for i in sorted(range(self.dim), key=lambda a: len(self.axes[a])):  # fixed coordinates first: cheap misses
+            mine, theirs = self.axes[i], other.axes[i]
+            if self.periodic[i] and other.periodic[i]:  # j/N inside j/M: exactly when N divides M, every (M/N)-th
                 if len(theirs) % len(mine):
                     return None
-                picks.append(np.arange(len(mine)) * (len(theirs) // len(mine)))
+                picks[i] = np.arange(len(mine)) * (len(theirs) // len(mine))
                 continue
             d = np.abs(((np.asarray(theirs)[None, :] - np.asarray(mine)[:, None]) + 0.5) % 1.0 - 0.5)
             j = np.argmin(d, axis=1)
             if d[np.arange(len(mine)), j].max() > _TOL:
                 return None
-            picks.append(j)
+            picks[i] = j
         return tuple(picks)
 
     def overlap(self, other: "Grid") -> tuple[tuple[np.ndarray, ...], tuple[np.ndarray, ...]] | None:
         """Index arrays (into this grid, into ``other``) of the points the two grids share, or None if none."""
         if other.dim != self.dim:
             return None
-        mine_idx, theirs_idx = [], []
-        for mine, theirs in zip(self.axes, other.axes):
-            a = np.asarray(mine)[:, None]
-            b = np.asarray(theirs)[None, :]
+        mine_idx, theirs_idx = [None] * self.dim, [None] * self.dim
+        for axis in sorted(range(self.dim), key=lambda a: len(self.axes[a])):  # fixed coordinates first
+            a = np.asarray(self.axes[axis])[:, None]
+            b = np.asarray(other.axes[axis])[None, :]
             match = np.abs(((a - b) + 0.5) % 1.0 - 0.5) <= _TOL
             i, j = np.nonzero(match)
             if i.size == 0:
                 return None
-            mine_idx.append(i)
-            theirs_idx.append(j)
+            mine_idx[axis], theirs_idx[axis] = i, j
         return tuple(mine_idx), tuple(theirs_idx)
 
     def describe(self) -> str:
