@@ -136,8 +136,9 @@ class BandData:
         self.progress = progress
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
-        # the cached grids contained in no other cached grid: every cached point is on one of them, so lookups
-        # need search only these (usually one or two once a full mesh is cached)
+        # the cached grids that brought new points and are contained in no other such grid: every cached point
+        # is on one of them or among the scattered points, so lookups search only these (often one, the full
+        # mesh, once it is cached)
         self._maximal: list[Grid] = []
         self._tables: dict[Grid, list] = {}
         # points diagonalised one by one (not on a grid): reduced k, energies, eigenvectors
@@ -229,9 +230,11 @@ class BandData:
                 out = (e[sel], v[sel])
                 self._grids[grid] = out
                 return out
+        before = self.stats.k_points
         out = self._fill(grid)
         self._grids[grid] = out
-        self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
+        if self.stats.k_points > before:  # a grid assembled only from known points adds nothing to search
+            self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
         return out
 
     def _locate(self, points: np.ndarray, grid: Grid) -> tuple[np.ndarray, tuple[np.ndarray, ...]]:
