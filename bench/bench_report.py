@@ -1,10 +1,12 @@
 """Benchmark: a whole report against the bare eigendecomposition of every k-point it used.
 
-    python bench/bench_report.py [--repeats 5]
+    python bench/bench_report.py [--repeats 5] [--scaling]
 
 For each model, `classify` runs every invariant that applies. `band_stats["k_points"]` counts the k-points it
-diagonalised. The bare cost is one batched numpy.linalg.eigh over that many Hamiltonians of the same model,
-already built. The report also lists the batches, to show that no k-point was diagonalised twice.
+diagonalised (each distinct k-point once). The bare cost is one batched numpy.linalg.eigh over that many
+Hamiltonians of the same model, already built. The report also lists the batches, to show that no k-point was
+diagonalised twice, and the median time of each invariant (its own work plus the k-points it was the first to
+need). With --scaling it repeats the measurement for other mesh sizes (options={"mesh": n}) and band counts.
 """
 
 from __future__ import annotations
@@ -17,6 +19,7 @@ import numpy as np
 
 import crystaltop as ct
 from crystaltop.examples import bernevig_hughes_zhang, fu_kane_mele, kane_mele, stacked_layers
+from crystaltop.examples.constructions import multilayer_stack
 
 CASES = {
     "Fu-Kane-Mele diamond (3D, 4 states)": (lambda: fu_kane_mele(dt=0.4, frame="bond"), "-3m", 2),
@@ -34,23 +37,52 @@ def median_time(fn, repeats):
     return statistics.median(out)
 
 
+def measure(build, group, filling, repeats, options=None):
+    """(k-points, number of invariants computed, bare s, report s, batches, per-invariant medians s)."""
+    model = build()
+    report = ct.classify(model, group=group, filling=filling, options=options)
+    n = report.band_stats["k_points"]
+    ok = sum(r.status == "ok" for r in report)
+    rng = np.random.default_rng(0)
+    h = model.hamiltonian(rng.random((n, model.dim)))
+    seconds: dict[str, list] = {}
+
+    def run():
+        for r in ct.classify(model, group=group, filling=filling, options=options):
+            if r.status == "ok":
+                seconds.setdefault(r.name, []).append(r.seconds)
+
+    bare = median_time(lambda: np.linalg.eigh(h), repeats)
+    full = median_time(run, repeats)
+    split = {name: statistics.median(v) for name, v in seconds.items()}
+    return n, ok, bare, full, report.band_stats["batches"], split
+
+
 def main():
-    ap = argparse.ArgumentParser()
+    ap = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     ap.add_argument("--repeats", type=int, default=5)
+    ap.add_argument("--scaling", action="store_true", help="also vary the mesh and the number of bands")
     args = ap.parse_args()
     print(f"{'model':<38} {'invariants':>10} {'k-points':>9} {'bare [s]':>9} {'report [s]':>10} {'ratio':>6}")
     for name, (build, group, filling) in CASES.items():
-        model = build()
-        report = ct.classify(model, group=group, filling=filling)
-        n = report.band_stats["k_points"]
-        ok = sum(r.status == "ok" for r in report)
-        rng = np.random.default_rng(0)
-        h = model.hamiltonian(rng.random((n, model.dim)))
-        bare = median_time(lambda: np.linalg.eigh(h), args.repeats)
-        full = median_time(lambda: ct.classify(model, group=group, filling=filling), args.repeats)
+        n, ok, bare, full, batches, split = measure(build, group, filling, args.repeats)
         print(f"{name:<38} {ok:>10} {n:>9} {bare:>9.4f} {full:>10.4f} {full / bare:>6.2f}")
-        for what, count in report.band_stats["batches"]:
+        for what, count in batches:
             print(f"{'':<40}batch {what}: {count}")
+        print(f"{'':<40}per invariant [ms]: " + ", ".join(f"{k} {1e3 * v:.1f}" for k, v in split.items()))
+    if not args.scaling:
+        return
+    print()
+    print(f"{'model':<46} {'mesh':>5} {'states':>6} {'k-points':>9} {'bare [s]':>9} {'report [s]':>10} {'ratio':>6}")
+    fkm = CASES["Fu-Kane-Mele diamond (3D, 4 states)"][0]
+    for mesh in (12, 16, 24, 32):
+        n, _, bare, full, _, _ = measure(fkm, "-3m", 2, args.repeats, options={"mesh": mesh})
+        print(f"{'Fu-Kane-Mele diamond':<46} {mesh:>5} {4:>6} {n:>9} {bare:>9.4f} {full:>10.4f} {full / bare:>6.2f}")
+    for layers in (1, 2, 4):
+        build = (lambda layers=layers: multilayer_stack(kane_mele(), layers, tz=0.1))
+        n, _, bare, full, _, _ = measure(build, "6/mmm", 2 * layers, max(3, args.repeats // 2))
+        print(f"{f'Kane-Mele, {layers} layer(s) per cell (3D)':<46} {24:>5} {4 * layers:>6} {n:>9} {bare:>9.4f} "
+              f"{full:>10.4f} {full / bare:>6.2f}")
 
 
 if __name__ == "__main__":
