@@ -96,11 +96,15 @@ def violation_details(model, group, *, time_reversal: bool = False, samples=16, 
     # H at every image momentum in one batch (one call per operation costs more than the sample itself)
     h_images = model.hamiltonian(np.concatenate(images)).reshape((len(images),) + h.shape) if images else h[None]
     out: dict[str, Violation] = {}
-    for op, d, h_g in zip(ops, mats, h_images):
+    step = max(1, (1 << 23) // max(1, h.nbytes))  # operations per stacked product (ops, samples, n, n), ~8 MB
+    for start in range(0, len(ops), step):
+        d = np.stack([np.broadcast_to(m, h.shape) for m in mats[start:start + step]])
+        h_g = h_images[start:start + d.shape[0]]
         lhs = d @ h @ np.conj(np.swapaxes(d, -1, -2))
         rel = _relative(lhs - h_g, h, h_g)
-        worst = int(np.argmax(rel))
-        out[op.label] = Violation(op.label, float(rel[worst]), ks[worst])
+        worst = np.argmax(rel, axis=-1)
+        for i, op in enumerate(ops[start:start + step]):
+            out[op.label] = Violation(op.label, float(rel[i, worst[i]]), ks[worst[i]])
     if time_reversal:
         u_t = np.asarray(u_t, dtype=complex)
         h_minus = h_images[-1]
