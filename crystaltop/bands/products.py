@@ -10,8 +10,13 @@ import numpy as np
 __all__ = ["ordered_product", "link_matrices", "link_determinants", "link_minors", "plucker_coordinates",
            "unitary_part", "batched_det", "hermitian_eigh"]
 
-#: largest number of m x m minors for which link determinants are formed from Plücker coordinates
+#: largest number of minors for which link determinants are formed from Plücker coordinates (one or two
+#: occupied bands only: their minors have closed forms; larger ones would need a determinant each)
 PLUCKER_LIMIT = 64
+
+
+def _plucker_pays(n: int, m: int) -> bool:
+    return m <= 2 and comb(n, m) <= PLUCKER_LIMIT
 
 
 def ordered_product(mats: np.ndarray, axis: int) -> np.ndarray:
@@ -103,8 +108,8 @@ def plucker_coordinates(vectors: np.ndarray) -> np.ndarray:
 
 def link_minors(vectors: np.ndarray) -> np.ndarray | None:
     """The Plücker coordinates :func:`link_determinants` would form, to be shared between axes, or None
-    when it would use the link matrices instead (more than :data:`PLUCKER_LIMIT` minors)."""
-    return plucker_coordinates(vectors) if comb(*vectors.shape[-2:]) <= PLUCKER_LIMIT else None
+    when it would use the link matrices instead (more than two occupied bands or :data:`PLUCKER_LIMIT` minors)."""
+    return plucker_coordinates(vectors) if _plucker_pays(*vectors.shape[-2:]) else None
 
 
 def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None, *,
@@ -115,13 +120,13 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     over the sets ``S`` of ``m`` rows, with ``μ`` the Plücker coordinates (:func:`plucker_coordinates`) and
     ``φ_S`` the product of the diagonal of ``P`` over ``S``. That is a few multiplications per k-point instead of
     a matrix product and a determinant, and ``μ`` serves every axis (pass it as ``minors``). Used when ``P`` is
-    diagonal (or absent) and there are at most :data:`PLUCKER_LIMIT` sets; otherwise the determinants of
+    diagonal (or absent), m <= 2 and there are at most :data:`PLUCKER_LIMIT` sets; otherwise the determinants of
     :func:`link_matrices`. Equal to those up to rounding.
     """
     axis = axis + vectors.ndim if axis < 0 else axis
     n, m = vectors.shape[-2:]
     diagonal = None if phase is None else _diagonal_of(phase)
-    if comb(n, m) > PLUCKER_LIMIT or (phase is not None and diagonal is None):
+    if not _plucker_pays(n, m) or (phase is not None and diagonal is None):
         return batched_det(link_matrices(vectors, axis, phase))
     mu = plucker_coordinates(vectors) if minors is None else minors
     bra = np.conj(mu)
