@@ -496,7 +496,10 @@ def _greedy_generators(ops: Sequence[Operation]) -> tuple[str, ...]:
     return tuple(op.label for op in chosen)
 
 
-def _span(generators: Sequence[np.ndarray]) -> list[np.ndarray]:
+def _span(generators: Sequence[np.ndarray], tol: float = 1e-6) -> list[np.ndarray]:
+    # Elements of a point group differ by at least ~0.5 in some entry, so a loose tolerance is safe; a tight one
+    # never closed (and looped forever) when some operations of a set had been snapped to their exact forms and
+    # others not, e.g. for an orientation with entries of order 1e-8.
     elements = [np.eye(3)]
     cursor = 0
     while cursor < len(elements):
@@ -504,7 +507,10 @@ def _span(generators: Sequence[np.ndarray]) -> list[np.ndarray]:
         cursor += 1
         for gen in generators:
             product = current @ gen
-            if not any(np.abs(product - m).max() < 1e-8 for m in elements):
+            if not any(np.abs(product - m).max() < tol for m in elements):
+                if len(elements) == 48:
+                    raise UnknownGroupError("the matrices generate more than 48 elements: not a crystallographic "
+                                            "point group (or not closed within the tolerance)")
                 elements.append(product)
     return elements
 

@@ -205,3 +205,16 @@ def test_float_closure_of_each_setting_has_the_matrices_of_the_exact_group(setti
     floats = groups._standard_matrices(normalize_symbol(setting))
     assert len(floats) == exact.order
     assert groups._same_matrix_sets(floats, exact.matrices, 1e-12)
+
+
+def test_from_matrices_terminates_for_an_orientation_with_entries_near_the_exactness_tolerance():
+    # a hypothesis example that made the generator search loop forever: entries of order 1e-8 are snapped to 0
+    # in the exact forms of some operations but not of others
+    rotation = np.array([[-0.6000000000000001, 0.7999999999999999, 8e-09],
+                         [0.7999999999999999, 0.5999999999999999, 1.6e-08],
+                         [8e-09, 1.6e-08, -0.9999999999999998]])
+    reference = point_group("32")
+    mats = np.einsum("ij,njk,lk->nil", rotation, reference.matrices, rotation)
+    found = PointGroup.from_matrices(mats[np.random.default_rng(0).permutation(len(mats))])
+    assert found.symbol == reference.symbol
+    assert found.approx_equal(reference.oriented(rotation), tol=1e-6)
