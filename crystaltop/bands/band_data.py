@@ -390,32 +390,31 @@ class BandData:
         return min((g for g, _ in self._gaps.values()), default=None)
 
     # ------------------------------------------------------------------ links and Wilson loops
+    def _loop_states(self, grid: Grid, axis: int, embed: bool) -> tuple[np.ndarray, np.ndarray | None]:
+        """The occupied states of a grid (gap checked) and, with ``embed``, the position phase of one step along
+        ``axis``, which must be a closed loop."""
+        if not grid.periodic[axis]:
+            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
+        occ = self.occupied(grid)
+        phase = None
+        if embed:
+            dk = np.zeros(self.model.dim)
+            dk[axis] = 1.0 / grid.shape[axis]
+            phase = np.asarray(self.model.position_phase(dk))
+        return occ, phase
+
     def links(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
         """Link matrices ``<u(k)| e^{-2πi dk·X} |u(k + dk)>`` along a periodic axis, shape ``(*shape, m, m)``.
 
         With ``embed=False`` the position phase is left out (periodic-gauge links, enough for Chern numbers).
         """
-        if not grid.periodic[axis]:
-            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
-        occ = self.occupied(grid)
-        phase = None
-        if embed:
-            dk = np.zeros(self.model.dim)
-            dk[axis] = 1.0 / grid.shape[axis]
-            phase = np.asarray(self.model.position_phase(dk))
+        occ, phase = self._loop_states(grid, axis, embed)
         return link_matrices(occ, axis, phase)
 
     def link_determinants(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
         """``det`` of the link matrices of :meth:`links`, shape ``(*shape,)`` (from Plücker coordinates of the
         occupied states where that is cheaper, see :func:`crystaltop.bands.products.link_determinants`)."""
-        if not grid.periodic[axis]:
-            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
-        occ = self.occupied(grid)
-        phase = None
-        if embed:
-            dk = np.zeros(self.model.dim)
-            dk[axis] = 1.0 / grid.shape[axis]
-            phase = np.asarray(self.model.position_phase(dk))
+        occ, phase = self._loop_states(grid, axis, embed)
         if grid not in self._minors:
             self._minors[grid] = link_minors(occ)
         return link_determinants(occ, axis, phase, minors=self._minors[grid])
