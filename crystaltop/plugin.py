@@ -25,10 +25,11 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any, Mapping
 
+import numpy as np
 import pluggy
 
 from .bands import BandData, batched_det, hermitian_eigh, link_determinants, link_matrices, link_minors
-from .errors import NotApplicable
+from .errors import GapClosedError, NotApplicable, SymmetryBreakingError
 from .kspace import Grid, line, plane, trims, uniform_mesh
 from .kspace import high_symmetry as _high_symmetry
 from .kspace.high_symmetry import *  # noqa: F401,F403 (high-symmetry momenta, mirror planes, C_n sectors)
@@ -55,6 +56,7 @@ __all__ = [
     "plane",
     "line",
     "trims",
+    "occupied_eigenvalues",
     "ELEMENTS",
 ] + _high_symmetry.__all__
 
@@ -242,6 +244,28 @@ class Context:
 
     def option(self, key: str, default=None):
         return self.options.get(key, default)
+
+
+def occupied_eigenvalues(bands: BandData, op, momentum) -> np.ndarray:
+    """Eigenvalues of ``op`` on the occupied states at a high-symmetry momentum (a ``HighSymmetryMomentum``).
+
+    The same as ``bands.symmetry_eigenvalues(op, momentum.k)``, with errors that name the momentum by its label.
+
+    Raises
+    ------
+    GapClosedError
+        If the occupied bands are degenerate with the empty ones at that momentum.
+    SymmetryBreakingError
+        If the occupied subspace is not invariant under the matrix given for ``op`` there.
+    """
+    try:
+        return bands.symmetry_eigenvalues(op, np.asarray(momentum.k))
+    except GapClosedError as exc:
+        raise GapClosedError(f"{exc}, at the high-symmetry momentum {momentum.label}: the occupied bands are "
+                             "degenerate with the empty ones there") from None
+    except SymmetryBreakingError as exc:
+        raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
+                                    "symmetry of the model") from None
 
 
 class _HookSpecs:

@@ -28,8 +28,8 @@ import numpy as np
 
 from crystaltop.errors import CrystaltopError, GapClosedError, SymmetryBreakingError
 from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta,
-                               hookimpl, pair_name, planar_rotations, rotation_levels, rotation_power,
-                               rotation_sectors, sector_names)
+                               hookimpl, occupied_eigenvalues, pair_name, planar_rotations, rotation_levels,
+                               rotation_power, rotation_sectors, sector_names)
 
 FGB = "rotation eigenvalues (Fang, Gilbert, Bernevig, PRB 86, 115112 (2012))"
 
@@ -37,18 +37,6 @@ FGB = "rotation eigenvalues (Fang, Gilbert, Bernevig, PRB 86, 115112 (2012))"
 def counterclockwise_rotations(group, dim: int) -> list:
     """One rotation per axis and fold: the one by +2π/n about its (canonical) axis."""
     return [op for op in planar_rotations(group, dim) if op.fold in (2, 3, 4, 6) and (op.fold == 2 or op.angle > 0)]
-
-
-def occupied_eigenvalues(bands, op, momentum) -> np.ndarray:
-    """Eigenvalues of ``op`` on the occupied states at a high-symmetry momentum; errors name the momentum."""
-    try:
-        return bands.symmetry_eigenvalues(op, np.asarray(momentum.k))
-    except GapClosedError as exc:
-        raise GapClosedError(f"{exc}, at the high-symmetry momentum {momentum.label}: the occupied bands are "
-                             "degenerate with the empty ones there") from None
-    except SymmetryBreakingError as exc:
-        raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
-                                    "symmetry of the model") from None
 
 
 def occupied_eigenvalues_at(bands, op, momenta) -> list[np.ndarray]:

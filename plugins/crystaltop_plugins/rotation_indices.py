@@ -31,22 +31,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from crystaltop.errors import GapClosedError, SymmetryBreakingError
+from crystaltop.errors import SymmetryBreakingError
 from crystaltop.plugin import (Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta, hookimpl,
-                               planar_rotations, rotation_power, sector_names)
+                               occupied_eigenvalues, planar_rotations, rotation_power, sector_names)
 
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
-
-
-def _eigenvalues(bands, op, momentum):
-    try:
-        return bands.symmetry_eigenvalues(op, np.asarray(momentum.k))
-    except GapClosedError as exc:
-        raise GapClosedError(f"{exc}, at the high-symmetry momentum {momentum.label}: the occupied bands are "
-                             "degenerate with the empty ones there") from None
-    except SymmetryBreakingError as exc:
-        raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
-                                    "symmetry of the model") from None
 
 
 class RotationIndices(Invariant):
@@ -61,7 +50,7 @@ class RotationIndices(Invariant):
         brackets, powers, counts_at, raw = {}, {}, {}, {}
         for n, op in sorted(ops.items()):
             fixed = [m for m in momenta if op.label in m.rotations]
-            lam = {m.label: _eigenvalues(bands, op, m) for m in fixed}
+            lam = {m.label: occupied_eigenvalues(bands, op, m) for m in fixed}
             power = {rotation_power(v, n, what=f"{op.label} at {label}") for label, v in lam.items()}
             if len(power) != 1:
                 raise SymmetryBreakingError(f"{op.label}^{n} is +1 at some momenta and −1 at others: its matrix is "
