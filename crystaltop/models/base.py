@@ -171,15 +171,18 @@ class BlochModel(abc.ABC):
         ----------
         op : Operation
             A point operation (about the model's origin).
-        k : array_like, shape (..., dim)
-            Reduced momenta.
+        k : array_like
+            Reduced momenta, taken as by :meth:`hamiltonian`.
 
         Returns
         -------
-        ndarray, shape (..., n_states, n_states), complex
+        ndarray
+            One complex ``(n_states, n_states)`` matrix per momentum, stacked as by :meth:`hamiltonian`.
 
         Raises
         ------
+        ShapeError
+            If ``k`` is refused, as by :meth:`hamiltonian`.
         LatticeMismatchError
             If the operation does not map the lattice (or the decorated lattice) onto itself.
         """
