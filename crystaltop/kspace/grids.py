@@ -9,6 +9,7 @@ it is a sub-grid of another one, so that a plane of a cached 3D mesh is sliced, 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 from itertools import product
 
 import numpy as np
@@ -42,17 +43,17 @@ class Grid:
     axes: tuple[tuple[float, ...], ...]
     periodic: tuple[bool, ...]
 
-    @property
+    @cached_property
     def dim(self) -> int:
         """Number of reduced coordinates of each point."""
         return len(self.axes)
 
-    @property
+    @cached_property
     def shape(self) -> tuple[int, ...]:
         """Number of values per axis."""
         return tuple(len(a) for a in self.axes)
 
-    @property
+    @cached_property
     def size(self) -> int:
         """Number of k-points."""
         return int(np.prod(self.shape))
@@ -60,26 +61,50 @@ class Grid:
     @property
     def points(self) -> np.ndarray:
         """The k-points, shape ``(*shape, dim)``, reduced coordinates."""
-        grids = np.meshgrid(*[np.asarray(a) for a in self.axes], indexing="ij")
+        grids = np.meshgrid(*self._arrays, indexing="ij")
         return np.stack(grids, axis=-1)
 
     def values(self, axis: int) -> np.ndarray:
         """Values along one axis as an array."""
         return np.asarray(self.axes[axis])
 
+    # the axes as (read-only) arrays and the axes ordered shortest first, formed once per grid: grids are compared
+    # with each other on every band-data lookup, so these comparisons must not rebuild arrays from the tuples
+    @cached_property
+    def _arrays(self) -> tuple[np.ndarray, ...]:
+        out = []
+        for a in self.axes:
+            arr = np.array(a, dtype=float)
+            arr.setflags(write=False)
+            out.append(arr)
+        return tuple(out)
+
+    @cached_property
+    def _short_first(self) -> tuple[int, ...]:
+        return tuple(sorted(range(len(self.axes)), key=lambda a: len(self.axes[a])))
+
     def indices_in(self, other: "Grid") -> tuple[np.ndarray, ...] | None:
         """Index arrays that pick this grid out of ``other``, or None if it is not a sub-grid."""
         if other.dim != self.dim:
             return None
         picks = [None] * self.dim
-        for i in sorted(range(self.dim), key=lambda a: len(self.axes[a])):  # fixed coordinates first: cheap misses
-            mine, theirs = self.axes[i], other.axes[i]
+        mine_all, theirs_all = self._arrays, other._arrays
+        for i in self._short_first:  # fixed coordinates first: cheap misses
             if self.periodic[i] and other.periodic[i]:  # j/N inside j/M: exactly when N divides M, every (M/N)-th
-                if len(theirs) % len(mine):
+                n, m = len(self.axes[i]), len(other.axes[i])
+                if m % n:
                     return None
-                picks[i] = np.arange(len(mine)) * (len(theirs) // len(mine))
+                picks[i] = np.arange(n) * (m // n)
                 continue
-            d = np.abs(((np.asarray(theirs)[None, :] - np.asarray(mine)[:, None]) + 0.5) % 1.0 - 0.5)
+            mine, theirs = mine_all[i], theirs_all[i]
+            if mine.shape[0] == 1:  # one value (a plane's fixed coordinate): a row of distances
+                d = np.abs(((theirs - mine[0]) + 0.5) % 1.0 - 0.5)
+                j = int(np.argmin(d))
+                if d[j] > _TOL:
+                    return None
+                picks[i] = np.array([j])
+                continue
+            d = np.abs(((theirs[None, :] - mine[:, None]) + 0.5) % 1.0 - 0.5)
             j = np.argmin(d, axis=1)
             if d[np.arange(len(mine)), j].max() > _TOL:
                 return None
@@ -91,10 +116,13 @@ class Grid:
         if other.dim != self.dim:
             return None
         mine_idx, theirs_idx = [None] * self.dim, [None] * self.dim
-        for axis in sorted(range(self.dim), key=lambda a: len(self.axes[a])):  # fixed coordinates first
-            a = np.asarray(self.axes[axis])[:, None]
-            b = np.asarray(other.axes[axis])[None, :]
-            match = np.abs(((a - b) + 0.5) % 1.0 - 0.5) <= _TOL
+        mine_all, theirs_all = self._arrays, other._arrays
+        for axis in self._short_first:  # fixed coordinates first
+            a, b = mine_all[axis], theirs_all[axis]
+            if self.periodic[axis] and other.periodic[axis] and a.shape[0] == b.shape[0]:  # the same uniform axis
+                mine_idx[axis] = theirs_idx[axis] = np.arange(a.shape[0])
+                continue
+            match = np.abs(((a[:, None] - b[None, :]) + 0.5) % 1.0 - 0.5) <= _TOL
             i, j = np.nonzero(match)
             if i.size == 0:
                 return None
