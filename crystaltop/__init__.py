@@ -23,7 +23,7 @@ _EXPORTS = {
     "LatticeModel": "models", "BlochFunction": "models", "BlochModel": "models",
     "classify": "classification", "applicable_invariants": "dispatch", "applicability": "dispatch",
     "InvariantRegistry": "dispatch", "default_registry": "dispatch",
-    "Report": "report", "Result": "report", "sweep": "sweep", "SweepTable": "sweep",
+    "Report": "report", "Result": "report", "sweep": "sweep", "SweepTable": "sweep", "verify_defects": "verification",
 }
 
 
@@ -62,5 +62,6 @@ __all__ = [
     "Result",
     "sweep",
     "SweepTable",
+    "verify_defects",
     "errors",
 ]

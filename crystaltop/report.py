@@ -12,7 +12,7 @@ import numpy as np
 
 from .plugin import CrossCheck
 
-__all__ = ["Result", "Report", "plain", "format_value"]
+__all__ = ["Result", "Report", "DefectCheck", "plain", "format_value"]
 
 OK, SKIPPED, FAILED = "ok", "skipped", "failed"
 
@@ -111,6 +111,42 @@ class Result:
 
 
 @dataclass(frozen=True)
+class DefectCheck:
+    """One prediction about a defect set against the measurement on a finite sample that contains it.
+
+    Made by :func:`crystaltop.verify_defects`; a report lists them in its "predicted / measured / agree" table.
+    """
+
+    #: report key of the invariant that made the prediction (e.g. ``"dislocation_response"``)
+    prediction: str
+    #: which case of it: ``"b=(1, 0)"``, ``"Ω=+π/2 at 1b"``, ``"corner"``
+    case: str
+    #: the sample measured (kind, size, boundary), or "" if none could be built
+    sample: str
+    #: the predicted outcome, in words and numbers
+    predicted: str
+    #: the measured outcome, or why nothing was measured
+    measured: str
+    #: True / False, or None when nothing was measured or the measurement did not converge (said in ``measured``)
+    agree: bool | None
+    #: how it was measured (solver, radii, convergence figure)
+    method: str = ""
+    #: plain-data numbers behind the comparison
+    details: Mapping[str, Any] = field(default_factory=dict)
+    #: name -> function drawing on a matplotlib Axes (density maps; not part of to_dict)
+    figures: Mapping[str, Any] = field(default_factory=dict, repr=False, compare=False)
+
+    @property
+    def verdict(self) -> str:
+        return {True: "yes", False: "NO", None: "undetermined"}[self.agree]
+
+    def to_dict(self) -> dict:
+        return {"prediction": self.prediction, "case": self.case, "sample": self.sample, "predicted": self.predicted,
+                "measured": self.measured, "agree": self.agree, "method": self.method,
+                "details": plain(self.details)}
+
+
+@dataclass(frozen=True)
 class Report:
     """The classification of one model: a record per invariant, plus what was checked about the model.
 
@@ -127,6 +163,8 @@ class Report:
     band_stats: Mapping[str, Any] = field(default_factory=dict)
     #: files written (figures), name -> path
     figures: Mapping[str, str] = field(default_factory=dict)
+    #: defect predictions checked on finite samples (:func:`crystaltop.verify_defects`), in the order measured
+    verification: tuple = ()
 
     def __post_init__(self):
         object.__setattr__(self, "results", MappingProxyType(dict(self.results)))
@@ -155,6 +193,19 @@ class Report:
     def failed(self) -> tuple:
         return tuple(r for r in self if r.status == FAILED)
 
+    @property
+    def disagreements(self) -> tuple:
+        """The defect checks whose measurement contradicts the prediction."""
+        return tuple(c for c in self.verification if c.agree is False)
+
+    def _figure_sources(self):
+        for r in self:
+            for fig_name, draw in r.figures.items():
+                yield f"{r.name}/{fig_name}", f"{r.name}-{fig_name}", draw
+        for i, c in enumerate(self.verification, 1):
+            for fig_name, draw in c.figures.items():
+                yield f"verification/{i}/{fig_name}", f"verify-{i:02d}-{c.prediction}-{fig_name}", draw
+
     def save_figures(self, directory) -> dict:
         """Draw every figure the invariants provide as PNG files in ``directory``; name -> path.
 
@@ -172,17 +223,16 @@ class Report:
         out = {}
         directory = Path(directory)
         directory.mkdir(parents=True, exist_ok=True)
-        for r in self:
-            for fig_name, draw in r.figures.items():
-                fig, ax = plt.subplots(figsize=(4.5, 3.5))
-                try:
-                    draw(ax)
-                    fig.tight_layout()
-                    path = directory / f"{r.name}-{fig_name}.png"
-                    fig.savefig(path, dpi=120)
-                    out[f"{r.name}/{fig_name}"] = str(path)
-                finally:
-                    plt.close(fig)
+        for key, stem, draw in self._figure_sources():
+            fig, ax = plt.subplots(figsize=(4.5, 3.5))
+            try:
+                draw(ax)
+                fig.tight_layout()
+                path = directory / f"{stem}.png"
+                fig.savefig(path, dpi=120)
+                out[key] = str(path)
+            finally:
+                plt.close(fig)
         return out
 
     def to_dict(self) -> dict:
@@ -192,6 +242,7 @@ class Report:
             "invariants": {name: r.to_dict() for name, r in self.results.items()},
             "band_data": plain(self.band_stats),
             "figures": dict(self.figures),
+            "verification": [c.to_dict() for c in self.verification],
         }
 
     def to_json(self, **kwargs) -> str:
@@ -246,6 +297,7 @@ class Report:
                 lines.append(f"{''.ljust(width)}  {''.ljust(vwidth)}    cross-check {check}")
             for note in self.results[name].notes:
                 lines.append(f"{''.ljust(width)}  {''.ljust(vwidth)}    note: {note}")
+        lines += self._verification_lines()
         if self.band_stats:
             lines.append("")
             lines.append(f"band data: {self.band_stats.get('k_points')} k-points diagonalised in "
@@ -253,6 +305,26 @@ class Report:
         for name, path in self.figures.items():
             lines.append(f"figure {name}: {path}")
         return "\n".join(lines)
+
+    def _verification_lines(self) -> list[str]:
+        if not self.verification:
+            return []
+        rows = [("prediction", "case", "predicted", "measured", "agree")]
+        rows += [(c.prediction, c.case, c.predicted, c.measured, c.verdict) for c in self.verification]
+        widths = [min(max(len(r[i]) for r in rows), cap) for i, cap in enumerate((22, 16, 34, 44, 12))]
+        lines = ["", "defects on finite samples (predicted / measured / agree):"]
+        for j, row in enumerate(rows):
+            lines.append("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
+            if j == 0:
+                lines.append("  ".join("-" * w for w in widths))
+            else:
+                c = self.verification[j - 1]
+                if c.sample:
+                    lines.append(f"{''.ljust(widths[0])}  sample: {c.sample}" + (f"; {c.method}" if c.method else ""))
+        bad = len(self.disagreements)
+        lines.append(f"{len(self.verification)} checks: {sum(c.agree is True for c in self.verification)} agree, "
+                     f"{bad} disagree, {sum(c.agree is None for c in self.verification)} undetermined")
+        return lines
 
     def to_markdown(self) -> str:
         out = ["## " + (self.model.get("name") or "model"), ""]
@@ -264,6 +336,12 @@ class Report:
         notes = [(r.name, n) for r in self for n in r.notes]
         if notes:
             out += ["", "Notes:", ""] + [f"- **{name}**: {n}" for name, n in notes]
+        if self.verification:
+            out += ["", "### Defects on finite samples", "",
+                    "| prediction | case | sample | predicted | measured | agree |", "|---|---|---|---|---|---|"]
+            for c in self.verification:
+                cells = [c.prediction, c.case, c.sample, c.predicted, c.measured, c.verdict]
+                out.append("| " + " | ".join(x.replace("|", "\\|") for x in cells) + " |")
         if self.figures:
             out += [""] + [f"![{name}]({path})" for name, path in self.figures.items()]
         return "\n".join(out) + "\n"
