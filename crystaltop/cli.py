@@ -14,7 +14,8 @@ __all__ = ["main"]
 
 MODEL_FILE_HELP = """\
 A model file is a Python file that defines either a function build() returning a model, or a variable MODEL;
-optionally GROUP (point-group symbol), FILLING (int) and TIME_REVERSAL (bool). Command-line options override them."""
+optionally GROUP (point-group symbol), FILLING (int), TIME_REVERSAL (bool) and IONS (the ionic background per cell,
+[((reduced position), charge), ...], used by --defects). Command-line options override them."""
 
 
 def _load_model_file(path: str):
@@ -28,7 +29,7 @@ def _load_model_file(path: str):
         model = ns["MODEL"]
     else:
         raise CrystaltopError(f"{path} defines neither build() nor MODEL")
-    return model, ns.get("GROUP"), ns.get("FILLING"), ns.get("TIME_REVERSAL")
+    return model, ns.get("GROUP"), ns.get("FILLING"), ns.get("TIME_REVERSAL"), ns.get("IONS")
 
 
 def _emit(report, fmt: str) -> str:
@@ -57,11 +58,21 @@ def _cmd_report(args) -> int:
     if not args.file:
         print("crystaltop report: give a model file or --demo", file=sys.stderr)
         return 2
-    model, group, filling, trs = _load_model_file(args.file)
-    report = classify(model, group=args.group or group, filling=args.filling or filling,
-                      time_reversal=trs if args.time_reversal is None else args.time_reversal, options=options)
+    model, group, filling, trs, ions = _load_model_file(args.file)
+    kwargs = dict(group=args.group or group, filling=args.filling or filling,
+                  time_reversal=trs if args.time_reversal is None else args.time_reversal, options=options)
+    if args.defects:
+        from .verification import verify_defects
+
+        report = verify_defects(model, ions=ions, **kwargs)
+    else:
+        report = classify(model, **kwargs)
+    if args.figures:
+        from dataclasses import replace
+
+        report = replace(report, figures=report.save_figures(args.figures))
     print(_emit(report, args.format))
-    return 1 if report.failed and args.strict else 0
+    return 1 if (report.failed or report.disagreements) and args.strict else 0
 
 
 def groups_table(registry=None) -> list[dict]:
@@ -117,7 +128,11 @@ def build_parser() -> argparse.ArgumentParser:
     fmt = rep.add_mutually_exclusive_group()
     fmt.add_argument("--json", dest="format", action="store_const", const="json")
     fmt.add_argument("--markdown", dest="format", action="store_const", const="markdown")
-    rep.add_argument("--strict", action="store_true", help="exit with status 1 if any invariant failed")
+    rep.add_argument("--defects", action="store_true",
+                     help="also build finite samples with the predicted defects and check each prediction on them")
+    rep.add_argument("--figures", metavar="DIR", help="write the figures (PNG, needs matplotlib) into DIR")
+    rep.add_argument("--strict", action="store_true",
+                     help="exit with status 1 if any invariant failed or a defect check disagreed")
     rep.set_defaults(format="text", func=_cmd_report)
     grp = sub.add_parser("groups", help="the 32 point groups and the invariants that apply to each")
     grp.add_argument("--json", action="store_true")

@@ -7,6 +7,8 @@ import subprocess
 import sys
 import textwrap
 
+import pytest
+
 from crystaltop.cli import main
 
 
@@ -59,3 +61,23 @@ def test_groups_json_lists_the_32_point_groups_with_their_invariants(capsys):
 def test_the_console_script_is_installed():
     out = subprocess.run([sys.executable, "-m", "crystaltop", "groups"], capture_output=True, text=True, check=True)
     assert out.stdout.splitlines()[0].startswith("HM")
+
+
+def test_report_with_defects_checks_the_predictions_on_samples_and_writes_the_maps(tmp_path, capsys):
+    """The C4 SSH obstructed limit with ions at 1a: e/2 at each dislocation (PHYSICS.md §8, Q = e (ẑ × b)·P) and
+    e/4 at a corner (Benalcazar, Li, Hughes, Phys. Rev. B 99, 245151 (2019))."""
+    path = tmp_path / "square.py"
+    path.write_text(textwrap.dedent("""
+        from crystaltop.examples import c4_breathing_square
+        GROUP = "4"
+        FILLING = 1
+        IONS = [((0.0, 0.0), 1.0)]
+        MODEL = c4_breathing_square(gamma=0.3)
+    """))
+    pytest.importorskip("matplotlib")
+    figures = tmp_path / "figures"
+    assert main(["report", str(path), "--defects", "--strict", "--figures", str(figures)]) == 0
+    out = capsys.readouterr().out
+    assert "predicted / measured / agree" in out
+    assert "disagree" in out and " 0 disagree" in out
+    assert any(p.name.startswith("verify-") for p in figures.iterdir())
