@@ -216,6 +216,55 @@ class BandData:
 
     def eigensystem(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
         """Energies ``(*shape, n)`` (ascending) and eigenvectors ``(*shape, n, n)`` (columns) on a grid."""
+        out = self._cached(grid)
+        if out is not None:
+            return out
+        before = self.stats.k_points
+        out = self._fill(grid)
+        self._grids[grid] = out
+        if self.stats.k_points > before:  # a grid assembled only from known points adds nothing to search
+            self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
+        return out
+
+    def eigensystems(self, grids) -> list[tuple[np.ndarray, np.ndarray]]:
+        """:meth:`eigensystem` of several grids, with every point that none of them can take from the cache
+        diagonalised in one batch (each distinct point once, also where the grids share lines)."""
+        grids = list(grids)
+        out = [self._cached(g) for g in grids]
+        todo = [i for i, o in enumerate(out) if o is None]
+        if len(todo) <= 1:
+            return [o if o is not None else self.eigensystem(g) for o, g in zip(out, grids)]
+        parts = [self._known_part(grids[i]) for i in todo]
+        wanted = [g.points[~known] for g, (_, _, known) in zip((grids[i] for i in todo), parts)]
+        flat = np.concatenate(wanted) if wanted else np.zeros((0, self.model.dim))
+        if flat.shape[0]:
+            # distinct points in the order they are first asked for, diagonalised at their own coordinates
+            _, inverse = _unique_rows(_point_keys(flat))
+            first = np.full(inverse.max() + 1, flat.shape[0])
+            np.minimum.at(first, inverse, np.arange(flat.shape[0]))
+            order = np.argsort(first, kind="stable")
+            rank = np.empty_like(order)
+            rank[order] = np.arange(order.shape[0])
+            what = ", ".join(grids[i].describe() for i, w in zip(todo, wanted) if w.shape[0])
+            e, v = self._diagonalise(flat[first[order]], f"{what} ({order.shape[0]} new points)")
+            where = rank[inverse]
+        start = 0
+        for i, (energies, vectors, known), w in zip(todo, parts, wanted):
+            grid = grids[i]
+            if w.shape[0]:
+                rows = where[start:start + w.shape[0]]
+                start += w.shape[0]
+                missing = ~known
+                energies[missing], vectors[missing] = e[rows], v[rows]
+            self.stats.cache_hits += 1 if known.any() else 0
+            out[i] = self._grids[grid] = (energies, vectors)
+            contained = any(grid.indices_in(g) is not None for g in self._maximal)
+            if w.shape[0] and not contained:
+                self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
+        return out
+
+    def _cached(self, grid: Grid) -> tuple[np.ndarray, np.ndarray] | None:
+        """The eigensystem of a grid that is cached or a sub-grid of a cached one, else None."""
         if grid.dim != self.model.dim:
             raise ShapeError(f"a {grid.dim}D grid was asked of a {self.model.dim}D model")
         if grid in self._grids:
@@ -230,12 +279,7 @@ class BandData:
                 out = (e[sel], v[sel])
                 self._grids[grid] = out
                 return out
-        before = self.stats.k_points
-        out = self._fill(grid)
-        self._grids[grid] = out
-        if self.stats.k_points > before:  # a grid assembled only from known points adds nothing to search
-            self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
-        return out
+        return None
 
     def _locate(self, points: np.ndarray, grid: Grid) -> tuple[np.ndarray, tuple[np.ndarray, ...]]:
         """The rows of ``points`` that lie on the grid, and their index tuple in it."""
@@ -254,9 +298,9 @@ class BandData:
                 return rows, tuple(np.zeros(0, dtype=int) for _ in range(grid.dim))
         return rows, tuple(idx)
 
-    def _fill(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
-        """Diagonalise a new grid, copying the points that cached grids (planes, lines, meshes) and earlier
-        scattered points already hold."""
+    def _known_part(self, grid: Grid) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Arrays for a new grid holding the points that cached grids (planes, lines, meshes) and earlier
+        scattered points already have, and the mask of those points."""
         n = self.model.n_states
         energies = np.empty(grid.shape + (n,))
         vectors = np.empty(grid.shape + (n, n), dtype=complex)
@@ -273,6 +317,11 @@ class BandData:
             if rows.size:
                 energies[mine], vectors[mine] = self._scattered_e[rows], self._scattered_v[rows]
                 known[mine] = True
+        return energies, vectors, known
+
+    def _fill(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
+        """Diagonalise a new grid, copying the points that the cache already holds."""
+        energies, vectors, known = self._known_part(grid)
         if known.all():
             self.stats.cache_hits += 1
             return energies, vectors
@@ -422,6 +471,30 @@ class BandData:
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""
         return ordered_product(self.links(grid, axis, embed=True), axis)
+
+    def wilson_loops_on(self, grids, axes) -> list[np.ndarray]:
+        """:meth:`wilson_loops` of several grids, each along its own axis, in one pass.
+
+        The points that none of the grids can take from the cache are diagonalised in one batch
+        (:meth:`eigensystems`); the gap is checked grid by grid, in order; grids whose loops have the same shape
+        share one stacked product of link matrices. Returns one array per grid, as :meth:`wilson_loops` does.
+        """
+        grids, axes = list(grids), [int(a) for a in axes]
+        self.eigensystems(grids)
+        states = [self._loop_states(g, a, True) for g, a in zip(grids, axes)]
+        groups: dict[tuple, list[int]] = {}
+        for i, (g, a) in enumerate(zip(grids, axes)):
+            groups.setdefault((g.shape[:a] + g.shape[a + 1:], g.shape[a]), []).append(i)
+        out: list = [None] * len(grids)
+        n = self.model.n_states
+        for (other, _), members in groups.items():
+            loop = len(other)  # the loop axis after the others, in each grid's order
+            occ = np.stack([np.moveaxis(states[i][0], axes[i], loop) for i in members])
+            phase = np.stack([states[i][1] for i in members]).reshape((len(members),) + (1,) * (loop + 1) + (n, n))
+            w = ordered_product(link_matrices(occ, loop + 1, phase), loop + 1)
+            for j, i in enumerate(members):
+                out[i] = w[j]
+        return out
 
     def wilson_loop_determinants(self, grid: Grid, axis: int) -> np.ndarray:
         """``det W`` of the Wilson loop along ``axis`` for every point of the other axes, ``(*other_shape,)``.

@@ -54,9 +54,10 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     axis : int
         Grid axis (counted among the leading grid dimensions) along which neighbours are taken; the last
         point is linked to the first (periodic gauge, ``H(k + G) = H(k)``).
-    phase : ndarray, shape (n, n), optional
+    phase : ndarray, shape (n, n) or (..., n, n), optional
         The position phase ``exp(-2πi dk·X)`` of one step, which makes the links those of the
-        position-gauge Bloch functions (so that Wilson-loop phases are true Wannier centres).
+        position-gauge Bloch functions (so that Wilson-loop phases are true Wannier centres). A stack of
+        phases broadcasts against the grid dimensions (several grids stacked along a leading axis).
 
     Returns
     -------
@@ -67,7 +68,7 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     if phase is not None:
         diagonal = _diagonal_of(phase)
         # P is diagonal in a site basis: a scaling of the rows instead of a product per k-point
-        ket = diagonal[:, None] * vectors if diagonal is not None else np.asarray(phase) @ vectors
+        ket = diagonal[..., :, None] * vectors if diagonal is not None else np.asarray(phase) @ vectors
     bra = np.conj(np.swapaxes(vectors, -1, -2))
     m = vectors.shape[-1]
     out = np.empty(vectors.shape[:-2] + (m, m), dtype=np.result_type(vectors, ket))
@@ -83,10 +84,10 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
 
 
 def _diagonal_of(phase) -> np.ndarray | None:
-    """The diagonal of ``phase`` if it is a diagonal matrix, else None."""
+    """The diagonal of ``phase`` (a matrix or a stack of them) if every matrix is diagonal, else None."""
     phase = np.asarray(phase)
-    diagonal = np.diagonal(phase)
-    return None if np.any(phase - np.diag(diagonal)) else diagonal
+    off = ~np.eye(phase.shape[-1], dtype=bool)
+    return None if np.any(phase[..., off]) else np.diagonal(phase, axis1=-2, axis2=-1)
 
 
 def plucker_coordinates(vectors: np.ndarray) -> np.ndarray:

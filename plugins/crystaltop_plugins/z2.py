@@ -84,12 +84,24 @@ def small_eigvals(w: np.ndarray) -> np.ndarray:
 def centres_on(bands, dim: int, spec: dict, pump_values, n_loop: int) -> tuple[np.ndarray, float, tuple]:
     """Sorted Wannier centres along the loop axis at each pumping value ``(K, m)``, the smallest |λ|, and the
     smallest direct gap on these k-points with where it is."""
-    grid = plane_grid(dim, spec, pump_values, n_loop)
-    w = bands.wilson_loops(grid, spec["loop"])  # checks the gap on the grid first
-    m = w.shape[-1]
-    lam = small_eigvals(w.reshape(-1, m, m))
+    return centres_on_planes(bands, dim, [spec], [pump_values], n_loop)[0]
+
+
+def centres_on_planes(bands, dim: int, specs, pumps, n_loop: int) -> list[tuple[np.ndarray, float, tuple]]:
+    """:func:`centres_on` for several planes at once: their new k-points diagonalised in one batch, their Wilson
+    loops formed in one stacked product and their eigenvalues in one call (the gap checked plane by plane)."""
+    grids = [plane_grid(dim, spec, pump, n_loop) for spec, pump in zip(specs, pumps)]
+    loops = bands.wilson_loops_on(grids, [spec["loop"] for spec in specs])  # checks the gap on each grid first
+    m = loops[0].shape[-1]
+    counts = [w.size // (m * m) for w in loops]
+    lam = small_eigvals(np.concatenate([w.reshape(-1, m, m) for w in loops]))
     x = np.sort(np.mod(-np.angle(lam) / (2 * np.pi), 1.0), axis=-1)
-    return x, float(np.abs(lam).min()), bands.gap(grid)
+    size = np.abs(lam).min(axis=-1)
+    out, start = [], 0
+    for grid, count in zip(grids, counts):
+        out.append((x[start:start + count], float(size[start:start + count].min()), bands.gap(grid)))
+        start += count
+    return out
 
 
 def _k_text(k) -> str:
@@ -103,29 +115,51 @@ def torus_distance(a, b) -> np.ndarray:
 
 
 def largest_gap(x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Midpoint and size of the largest gap between sorted centres ``x`` (K, m) on the circle."""
-    gaps = np.diff(np.concatenate([x, x[:, :1] + 1.0], axis=1), axis=1)
-    j = np.argmax(gaps, axis=1)
-    rows = np.arange(x.shape[0])
-    size = gaps[rows, j]
-    return np.mod(x[rows, j] + size / 2.0, 1.0), size
+    """Midpoint and size of the largest gap between sorted centres ``x`` (..., K, m) on the circle."""
+    gaps = np.diff(np.concatenate([x, x[..., :1] + 1.0], axis=-1), axis=-1)
+    j = np.argmax(gaps, axis=-1)[..., None]
+    size = np.take_along_axis(gaps, j, axis=-1)[..., 0]
+    return np.mod(np.take_along_axis(x, j, axis=-1)[..., 0] + size / 2.0, 1.0), size
 
 
 def step_crossings(z: np.ndarray, x: np.ndarray) -> np.ndarray:
     """Per step j: number of centres x(k_{j+1}) on the counter-clockwise arc from z_j to z_{j+1}."""
-    arc = np.mod(z[1:] - z[:-1], 1.0)
-    rel = np.mod(x[1:] - z[:-1, None], 1.0)
-    return np.sum(rel < arc[:, None], axis=1)
+    arc = np.mod(z[..., 1:] - z[..., :-1], 1.0)
+    rel = np.mod(x[..., 1:, :] - z[..., :-1, None], 1.0)
+    return np.sum(rel < arc[..., None], axis=-1)
 
 
 def step_checks(z: np.ndarray, size: np.ndarray, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Per step j: closest approach of a centre at k_{j+1} to z_j, and how far the set of centres moved
-    (Hausdorff distance on the circle), both relative to the half-gap at k_j."""
-    half = size[:-1] / 2.0
-    approach = torus_distance(x[1:], z[:-1, None]).min(axis=1) / half
-    d = torus_distance(x[1:, :, None], x[:-1, None, :])
-    move = np.maximum(d.min(axis=1).max(axis=1), d.min(axis=2).max(axis=1)) / half
+    (Hausdorff distance on the circle), both relative to the half-gap at k_j. Leading axes (planes) broadcast."""
+    half = size[..., :-1] / 2.0
+    approach = torus_distance(x[..., 1:, :], z[..., :-1, None]).min(axis=-1) / half
+    d = torus_distance(x[..., 1:, :, None], x[..., :-1, None, :])
+    move = np.maximum(d.min(axis=-2).max(axis=-1), d.min(axis=-1).max(axis=-1)) / half
     return approach, move
+
+
+def _flow(z, size, x, pump, approach, move, added: int, norm: float, gap) -> dict:
+    """The record of a resolved flow: the plane's Z2 and its figures of merit."""
+    crossings = step_crossings(z, x)
+    return {"z2": int(crossings.sum() % 2), "crossings": int(crossings.sum()), "pump": pump, "centres": x,
+            "midpoints": z, "gaps": size, "added": added, "norm": norm, "gap": gap,
+            "closest": float(torus_distance(x[1:], z[:-1, None]).min()),
+            "approach": float(max(0.0, 1.0 - approach.min())), "move": float(move.max())}
+
+
+def first_pass(bands, dim: int, planes: list, n: int) -> list:
+    """The flow of every plane from one batch on the n-point loops and n/2 + 1 pumping values: the record of
+    each plane whose flow needs no refinement and no finer loops, None for the others."""
+    pump = np.arange(n // 2 + 1) / n
+    found = centres_on_planes(bands, dim, planes, [pump] * len(planes), n)
+    x = np.stack([c[0] for c in found])
+    z, size = largest_gap(x)
+    approach, move = step_checks(z, size, x)
+    bad = ((approach < GAP_CHECK) | (move > MOVE_CHECK)).any(axis=-1)
+    return [None if norm < NORM_CHECK or bad[i] else
+            _flow(z[i], size[i], x[i], pump, approach[i], move[i], 0, norm, gap)
+            for i, (_, norm, gap) in enumerate(found)]
 
 
 def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int) -> dict:
@@ -156,11 +190,7 @@ def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int) -> dict:
         pump = np.concatenate([pump, new])
         order = np.argsort(pump, kind="stable")
         pump, x = pump[order], np.concatenate([x, xn])[order]
-    crossings = step_crossings(z, x)
-    return {"z2": int(crossings.sum() % 2), "crossings": int(crossings.sum()), "pump": pump, "centres": x,
-            "midpoints": z, "gaps": size, "added": added, "norm": norm, "gap": gap,
-            "closest": float(torus_distance(x[1:], z[:-1, None]).min()),
-            "approach": float(max(0.0, 1.0 - approach.min())), "move": float(move.max())}
+    return _flow(z, size, x, pump, approach, move, added, norm, gap)
 
 
 def flow_text(spec: dict, flow: dict) -> str:
@@ -208,7 +238,14 @@ class Z2Index(Invariant):
         largest = int(context.option("max_mesh", 4 * n))
         max_refine = int(context.option("refine", MAX_REFINE))
         planes, flows, meshes = invariant_planes(dim), {}, {}
-        for spec in planes:
+        try:  # every plane in one batch; a plane that needs refinement or finer loops is tracked on its own below
+            done = first_pass(bands, dim, planes, n)
+        except GapClosedError:  # found again, with the plane named, plane by plane below
+            done = [None] * len(planes)
+        for spec, flow in zip(planes, done):
+            if flow is not None:
+                flows[spec["key"]], meshes[spec["key"]] = flow, n
+                continue
             m = n
             while True:
                 try:
