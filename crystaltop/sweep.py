@@ -24,6 +24,7 @@ from pathlib import Path
 from typing import Any, Callable, Mapping, Sequence
 
 from .errors import CrystaltopError, GapClosedError
+from .progress import progress_bar
 from .report import plain
 
 __all__ = ["sweep", "SweepTable", "GAPLESS", "ERROR", "OK"]
@@ -175,18 +176,6 @@ def _read_done(path: Path) -> dict:
     return done
 
 
-def _progress(total: int, enabled):
-    if enabled is None:
-        enabled = sys.stderr.isatty()
-    if not enabled:
-        return None
-    try:
-        from tqdm import tqdm
-    except ImportError:
-        return None
-    return tqdm(total=total, desc="sweep", unit="point")
-
-
 def sweep(build: Callable, grid: Mapping[str, Sequence], *, invariants=None, executor: Executor | None = None,
           group=None, filling=None, time_reversal=None, options=None, output=None, progress=None,
           **classify_kwargs) -> SweepTable:
@@ -232,7 +221,7 @@ def sweep(build: Callable, grid: Mapping[str, Sequence], *, invariants=None, exe
     out_path = None if output is None else Path(output)
     done = _read_done(out_path) if out_path is not None else {}
     todo = [p for p in points if _key(dict(zip(names, p))) not in done]
-    bar = _progress(len(todo), progress)
+    bar = progress_bar(len(todo), "sweep", "point", progress, leave=True)
     results = dict(done)
     sink = open(out_path, "a") if out_path is not None else None
     if sink is not None and out_path.stat().st_size and not out_path.read_bytes().endswith(b"\n"):
@@ -243,8 +232,7 @@ def sweep(build: Callable, grid: Mapping[str, Sequence], *, invariants=None, exe
             if sink is not None:
                 sink.write(json.dumps(row) + "\n")
                 sink.flush()
-            if bar is not None:
-                bar.update(1)
+            bar.update(1)
 
         if executor is None:
             for p in todo:
@@ -262,8 +250,7 @@ def sweep(build: Callable, grid: Mapping[str, Sequence], *, invariants=None, exe
     finally:
         if sink is not None:
             sink.close()
-        if bar is not None:
-            bar.close()
+        bar.close()
     rows = tuple(results[_key(dict(zip(names, p)))] for p in points)
     info = {"executor": type(executor).__name__ if executor is not None else "serial", "computed": len(todo),
             "resumed": len(points) - len(todo)}

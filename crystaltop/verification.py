@@ -25,13 +25,13 @@ converged is "undetermined", never "agrees"; a disagreement is reported as "NO" 
 from __future__ import annotations
 
 import math
-import sys
 from dataclasses import dataclass, replace
 from typing import Any, Callable
 
 import numpy as np
 
 from .errors import CrystaltopError
+from .progress import progress_bar
 
 __all__ = ["verify_defects", "DEFAULT_SIZES"]
 
@@ -340,18 +340,6 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
 
 
 # ---------------------------------------------------------------------------------------------- the entry point
-def _progress(items, enabled, total):
-    if enabled is None:
-        enabled = sys.stderr.isatty()
-    if not enabled:
-        return items
-    try:
-        from tqdm import tqdm
-    except ImportError:  # pragma: no cover - tqdm is a core dependency
-        return items
-    return tqdm(items, total=total, desc="defect samples", unit="sample", leave=False)
-
-
 def verify_defects(model, group=None, filling=None, *, report=None, ions=None, burgers=(), sizes=None,
                    tolerance: float = 0.02, count: int = 12, progress: bool | None = None, **classify_options):
     """Check a report's defect predictions on finite samples that contain the defects.
@@ -423,12 +411,14 @@ def verify_defects(model, group=None, filling=None, *, report=None, ions=None, b
     from .report import DefectCheck
 
     checks = []
-    for job in _progress(jobs, progress, len(jobs)):
+    bar = progress_bar(len(jobs), "defect samples", "sample", progress)
+    for job in jobs:
         try:
             sample = job.build()
         except CrystaltopError as exc:
             checks += [DefectCheck(job.prediction, job.case, "", predicted, f"not measured: {exc}", None)
                        for predicted, _ in job.comparisons]
+            bar.update(1)
             continue
         described = _describe(sample)
         cache: dict = {}
@@ -441,4 +431,6 @@ def verify_defects(model, group=None, filling=None, *, report=None, ions=None, b
                 continue
             checks.append(DefectCheck(job.prediction, job.case, described, predicted, got["measured"], got["agree"],
                                       got["method"], got["details"], got["figures"]))
+        bar.update(1)
+    bar.close()
     return replace(report, verification=report.verification + tuple(checks))

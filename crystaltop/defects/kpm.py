@@ -30,6 +30,10 @@ from numpy.polynomial import chebyshev
 from scipy.special import erfc
 
 from ..errors import DefectGeometryError
+from ..progress import progress_bar, wanted
+
+#: Work (stored matrix entries × recursion steps × local vectors) above which a terminal shows a progress bar.
+PROGRESS_MIN_WORK = 2e9
 
 __all__ = ["ChebyshevExpansion", "chebyshev_expansion", "local_occupation", "spectral_bounds", "hop_levels"]
 
@@ -116,8 +120,12 @@ def hop_levels(h: sp.csr_matrix, seeds: np.ndarray, depth: int) -> np.ndarray:
     return level
 
 
-def local_occupation(h: sp.csr_matrix, states: np.ndarray, expansion: ChebyshevExpansion, *, batch: int = 64):
+def local_occupation(h: sp.csr_matrix, states: np.ndarray, expansion: ChebyshevExpansion, *, batch: int = 64,
+                     progress: bool | None = None):
     """``⟨i|f(H)|i⟩`` and its error bound for each state index in ``states``.
+
+    ``progress``: a bar over the recursion steps (batches × moments/2), by default only on a terminal and only
+    when the recursion is long (more than :data:`PROGRESS_MIN_WORK` stored entries × steps).
 
     Returns
     -------
@@ -146,6 +154,10 @@ def local_occupation(h: sp.csr_matrix, states: np.ndarray, expansion: ChebyshevE
     position[order] = np.arange(len(order))
     density = np.zeros(len(states))
     error = np.zeros(len(states))
+    batches = -(-len(states) // batch)
+    if progress is None and wanted(None):
+        progress = sub.nnz * half * len(states) > PROGRESS_MIN_WORK
+    bar = progress_bar(batches * half, "Chebyshev recursion", "step", bool(progress))
     for start in range(0, len(states), batch):
         cols = position[states[start:start + batch]]
         width = len(cols)
@@ -170,9 +182,11 @@ def local_occupation(h: sp.csr_matrix, states: np.ndarray, expansion: ChebyshevE
                 mu[2 * j + 1] = 2.0 * np.real(np.einsum("ij,ij->j", np.conj(nxt[:rows]), v[:rows])) - mu[1]
             v_prev[:nxt_rows] = v[:nxt_rows]
             v[:nxt_rows] = nxt
+            bar.update(1)
         mu = mu[:n_mom]
         density[start:start + width] = expansion.step @ mu
         error[start:start + width] = np.abs(expansion.window @ mu) + expansion.truncation
+    bar.close()
     return density, error, len(order)
 
 

@@ -248,7 +248,7 @@ class OccupiedDensity:
 def occupied_density(sample: Sample, *, fermi_energy: float | None = None, electrons: int | None = None,
                      method: str = "auto", region: np.ndarray | None = None, near_fermi: str = "empty",
                      degeneracy_tol: float | None = None, smoothing: float | None = None,
-                     tol: float = 1e-10) -> OccupiedDensity:
+                     tol: float = 1e-10, progress: bool | None = None) -> OccupiedDensity:
     """The occupied density, by dense diagonalisation or by the Chebyshev expansion on local vectors.
 
     Parameters
@@ -269,6 +269,8 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
     smoothing : float, optional
         Chebyshev: width ``w`` of the smoothed step. Default: 1/8 of the bulk gap, halved (at most twice) while the
         error bound summed over the region exceeds 1e-3, i.e. while an in-gap state lies within a few ``w`` of E_F.
+    progress : bool, optional
+        Chebyshev: a progress bar over the recursion (default: on a terminal, for long recursions only).
     """
     h = sample.hamiltonian
     n = h.shape[0]
@@ -306,7 +308,7 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
     bounds = spectral_bounds(h)
     for attempt in range(3):
         expansion = chebyshev_expansion(bounds, e_f, w, tol=tol)
-        rho, err, reach = local_occupation(h, idx, expansion)
+        rho, err, reach = local_occupation(h, idx, expansion, progress=progress)
         # an in-gap state within a few w of E_F is partly occupied by the smoothed step: narrow it (unless given)
         if smoothing is not None or err.sum() < 1e-3 or attempt == 2:
             break
