@@ -57,6 +57,7 @@ __all__ = [
     "line",
     "trims",
     "occupied_eigenvalues",
+    "inversion_parities",
     "ELEMENTS",
 ] + _high_symmetry.__all__
 
@@ -266,6 +267,40 @@ def occupied_eigenvalues(bands: BandData, op, momentum) -> np.ndarray:
     except SymmetryBreakingError as exc:
         raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
                                     "symmetry of the model") from None
+
+
+def _trim_text(k) -> str:
+    return "(" + ", ".join("1/2" if abs(v - 0.5) < 1e-9 else "0" for v in k) + ")"
+
+
+def _parity_signs(lam: np.ndarray, points: np.ndarray, tol: float) -> np.ndarray:
+    sign = np.where(lam.real > 0, 1, -1)
+    off = np.abs(lam - sign).max(axis=-1)
+    bad = np.nonzero(off > tol)[0]
+    if bad.size:
+        raise SymmetryBreakingError(f"inversion eigenvalues at k={_trim_text(points[bad[0]])} are not ±1 "
+                                    f"(off by {float(off[bad[0]]):.1e})")
+    return sign
+
+
+def inversion_parities(bands: BandData, op, points, *, tol: float = 1e-6) -> np.ndarray:
+    """Signs ±1 ``(m, filling)`` of the eigenvalues of the inversion ``op`` on the occupied states at the TRIMs
+    ``points`` ``(m, dim)``, formed in one batch.
+
+    Raises
+    ------
+    SymmetryBreakingError
+        Naming the first TRIM (in order) where an eigenvalue is farther than ``tol`` from ±1, or where the
+        occupied subspace is not invariant.
+    GapClosedError
+        If the occupied bands are degenerate with the empty ones at a TRIM. Failures are those of a loop over
+        the TRIMs in order: the first TRIM where any check fails is the one named.
+    """
+    points = np.asarray(points, dtype=float).reshape(-1, bands.model.dim)
+    try:
+        return _parity_signs(np.array(bands.symmetry_eigenvalues_at(op, points)), points, tol)
+    except (GapClosedError, SymmetryBreakingError):  # again one TRIM after the other, to raise the first failure
+        return np.array([_parity_signs(bands.symmetry_eigenvalues(op, k)[None], k[None], tol)[0] for k in points])
 
 
 class _HookSpecs:
