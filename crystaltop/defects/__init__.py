@@ -17,7 +17,9 @@ Measurements (frozen results with the method and a convergence or error figure):
   vectors with its error bound);
 * :func:`bound_charge` -> :class:`BoundCharge` (charge in discs around the cores against the radius),
   :func:`region_charge` (any set of ions);
-* :func:`measure_defect` -> :class:`DefectMeasurement` (all of it, per core).
+* :func:`measure_defect` -> :class:`DefectMeasurement` (all of it, per core);
+* :func:`split_dislocation` -> :class:`DislocationSplitting` (a disclination dipole swept in separation: which
+  core the bound states and the charge follow).
 
 Examples
 --------
@@ -35,6 +37,7 @@ from .builders import (build_sample, disclination, disclination_dipole, dislocat
 from .samples import Core, DefectSpec, Sample
 from .solvers import (BoundCharge, DefectMeasurement, NearStates, OccupiedDensity, bound_charge, local_density,
                       localisation, measure_defect, occupied_density, region_charge, states_near)
+from .splitting import DislocationSplitting, SplitCore, SplittingStep, SplitVerdict, split_dislocation
 
 __all__ = [
     "flake",
@@ -59,4 +62,9 @@ __all__ = [
     "BoundCharge",
     "measure_defect",
     "DefectMeasurement",
+    "split_dislocation",
+    "DislocationSplitting",
+    "SplittingStep",
+    "SplitCore",
+    "SplitVerdict",
 ]
