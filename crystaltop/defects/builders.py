@@ -380,11 +380,13 @@ def flake(model, shape: str = "parallelogram", size=10, *, filling: int | None =
     Parameters
     ----------
     model : BlochModel or RealSpaceForm
-    shape : {"parallelogram", "polygon"}
+    shape : {"parallelogram", "polygon", "triangle"}
         ``"parallelogram"``: ``size`` cells along each lattice vector (a square of ``L × L`` cells on the square
         lattice). ``"polygon"``: the cells whose centre lies in the Wigner–Seitz cell scaled to inradius
         ``size / 2`` about ``centre`` (a square on the square lattice, a hexagon on the triangular one, symmetric
-        under every rotation of the lattice about ``centre``).
+        under every rotation of the lattice about ``centre``). ``"triangle"`` (hexagonal lattices): the cells
+        whose centre lies in the equilateral triangle of inradius ``size / 2`` about ``centre`` with faces normal
+        to three of the hexagon's face normals, 120° apart (symmetric under the rotations by 2π/3 about it).
     size : int or tuple of int
         Linear size in cells.
     filling : int, optional
@@ -421,27 +423,46 @@ def flake(model, shape: str = "parallelogram", size=10, *, filling: int | None =
             lo = -0.5 + anchor
             hi = np.array(extents) - 0.5 + anchor
             return np.min(np.minimum(reduced - lo, hi - reduced) * spacing, axis=1)
-    elif shape == "polygon":
+    elif shape in ("polygon", "triangle"):
         radius = _parse_size(size, 1, "size")[0] / 2.0
-        dirs = relevant_directions(form.lattice)
+        if shape == "polygon":
+            dirs = relevant_directions(form.lattice)
+            distance = lambda r: polygon_distance(r, dirs)  # noqa: E731
+        else:
+            dirs = _triangle_directions(form.lattice)
+            distance = lambda r: (np.asarray(r) @ dirs.T).max(axis=-1)  # noqa: E731
         c = np.zeros(dim) if centre is None else np.asarray(centre, dtype=float).reshape(dim)
         c_cart = c @ form.lattice
         box = _box(form.lattice, c_cart, 2.0 * radius)
-        inside = polygon_distance((box + anchor) @ form.lattice - c_cart, dirs) <= radius + 1e-9
+        inside = distance((box + anchor) @ form.lattice - c_cart) <= radius + 1e-9
         cells = box if not whole_cells else box[inside]
 
         def edge(reduced):
-            return radius - polygon_distance(reduced @ form.lattice - c_cart, dirs) + 0.5
+            return radius - distance(reduced @ form.lattice - c_cart) + 0.5
     else:
-        raise DefectGeometryError(f"unknown flake shape {shape!r}: expected 'parallelogram' or 'polygon'")
+        raise DefectGeometryError(f"unknown flake shape {shape!r}: expected 'parallelogram', 'polygon' or 'triangle'")
     states = _plain_points(form.positions, cells, form.lattice, edge)
     ions_pts = _plain_points(prep.ion_positions, cells, form.lattice, edge)
-    if shape == "polygon" and not whole_cells:
-        states = states.subset(polygon_distance(states.positions - c_cart, dirs) <= radius + 1e-9)
-        ions_pts = ions_pts.subset(polygon_distance(ions_pts.positions - c_cart, dirs) <= radius + 1e-9)
+    if shape != "parallelogram" and not whole_cells:
+        states = states.subset(distance(states.positions - c_cart) <= radius + 1e-9)
+        ions_pts = ions_pts.subset(distance(ions_pts.positions - c_cart) <= radius + 1e-9)
     router = FaceRouter((), None, form.lattice, np.eye(dim)[: min(dim, 2)] if dim >= 2 else np.eye(1))
     return _finish(prep, form, spec, states, ions_pts, router, None, None, wrap=None, cores=(),
                    periodic=(False,) * dim)
+
+
+def _triangle_directions(lattice: np.ndarray) -> np.ndarray:
+    """Outward face normals of an equilateral triangle: a Wigner–Seitz face normal and its turns by ±2π/3.
+
+    ``max_j r·û_j ≤ R`` is the triangle of inradius R (not an absolute value: a triangle is not centrosymmetric).
+    """
+    dirs = relevant_directions(lattice)
+    if len(dirs) != 3:
+        raise DefectGeometryError("a triangular flake needs a hexagonal lattice (three Wigner–Seitz face pairs)")
+    turns = np.array([0.0, 2.0 * np.pi / 3.0, 4.0 * np.pi / 3.0])
+    c, s = np.cos(turns), np.sin(turns)
+    d = dirs[0]
+    return np.column_stack([c * d[0] - s * d[1], s * d[0] + c * d[1]])
 
 
 def _plain_points(label_pos, cells, lattice, edge, n_cores: int = 0, core_images=()):

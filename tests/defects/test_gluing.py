@@ -167,3 +167,20 @@ def test_the_kekule_model_respects_its_group():
     model = kekule_honeycomb(0.5, 1.0)
     assert max(symmetry_violations(model, point_group("6/mmm")).values()) < 1e-12
     assert max(symmetry_violations(p_orbital_square(), point_group("4/mmm")).values()) < 1e-12
+
+
+def test_a_triangular_flake_is_symmetric_under_the_third_turn_and_refused_on_the_square_lattice():
+    """Geometry only: the cells of a triangle of inradius L/2 about 1a map onto themselves under C3 (and not under
+    C2, a triangle not being centrosymmetric); a square lattice has no triangle of Wigner–Seitz face normals."""
+    from crystaltop.errors import DefectGeometryError
+    from crystaltop.examples.crystalline import breathing_kagome
+
+    sample = flake(breathing_kagome(0.2, 1.0), "triangle", 12, filling=1)
+    xy = sample.ion_positions - sample.ion_positions.mean(axis=0)
+    turn = 2 * np.pi / 3
+    rot = np.array([[np.cos(turn), -np.sin(turn)], [np.sin(turn), np.cos(turn)]])
+    key = lambda pts: sorted(map(tuple, np.round(pts, 6)))  # noqa: E731
+    assert key(xy @ rot.T) == key(xy)
+    assert key(-xy) != key(xy)
+    with pytest.raises(DefectGeometryError, match="hexagonal lattice"):
+        flake(c4_breathing_square(gamma=0.3), "triangle", 8, filling=1)
