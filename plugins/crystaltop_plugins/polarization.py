@@ -73,6 +73,26 @@ def quantised_values(constraints, dim: int):
     return per
 
 
+#: allowed values already worked out, by the group's matrices and the lattice (they depend on nothing else)
+_ALLOWED: dict = {}
+
+
+def allowed_values(group, lattice, dim: int):
+    """:func:`quantised_values` of the group's constraints on this lattice, worked out once per group and lattice."""
+    lattice = np.asarray(lattice, dtype=float)
+    key = (dim, lattice.tobytes(), tuple((op.label, np.asarray(op.matrix, dtype=float).tobytes())
+                                         for op in group.operations))
+    found = _ALLOWED.get(key)
+    if found is None:
+        if len(_ALLOWED) > 256:
+            _ALLOWED.clear()
+        found = _ALLOWED[key] = quantised_values(symmetry_constraints(group, lattice, dim), dim)
+        for entry in found:
+            if entry is not None:
+                entry[1].setflags(write=False)
+    return found
+
+
 class Polarization(Invariant):
     name = "polarization"
     title = "Polarization (Wannier-centre sum)"
@@ -102,7 +122,7 @@ class Polarization(Invariant):
         measured = np.array(measured)
         value = tuple(float(x) for x in measured)
         notes, details = [], {"measured": value, "change_from_half_mesh": change}
-        allowed = quantised_values(symmetry_constraints(context.group, context.lattice, dim), dim)
+        allowed = allowed_values(context.group, context.lattice, dim)
         if allowed and allowed[0] is not None and allowed[0][0] == "all":
             _, cands, labels = allowed[0]
             dist = torus_distance(cands, measured).max(axis=1)
