@@ -150,7 +150,9 @@ class BandData:
         # single points asked for again (high-symmetry momenta, by several invariants): by their exact bytes
         self._single: dict[bytes, tuple[np.ndarray, np.ndarray]] = {}
         # Plücker coordinates of the occupied states per grid (shared by the link determinants of every axis)
-        self._minors: dict[Grid, np.ndarray] = {}
+        self._minors: dict[Grid, tuple] = {}
+        # position phases exp(-2πi dk·X) of one step j/N along an axis, by (axis, N)
+        self._steps: dict[tuple[int, int], np.ndarray] = {}
         # occupied-subspace representations already formed: (operation, k) -> (matrix, gap at k)
         self._representations: dict[tuple, tuple[np.ndarray, float]] = {}
         #: every gap checked, in order (the dispatcher reads the part each invariant added)
@@ -447,9 +449,11 @@ class BandData:
         occ = self.occupied(grid)
         phase = None
         if embed:
-            dk = np.zeros(self.model.dim)
-            dk[axis] = 1.0 / grid.shape[axis]
-            phase = np.asarray(self.model.position_phase(dk))
+            phase = self._steps.get((axis, grid.shape[axis]))
+            if phase is None:
+                dk = np.zeros(self.model.dim)
+                dk[axis] = 1.0 / grid.shape[axis]
+                phase = self._steps[(axis, grid.shape[axis])] = np.asarray(self.model.position_phase(dk))
         return occ, phase
 
     def links(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
@@ -464,9 +468,11 @@ class BandData:
         """``det`` of the link matrices of :meth:`links`, shape ``(*shape,)`` (from Plücker coordinates of the
         occupied states where that is cheaper, see :func:`crystaltop.bands.products.link_determinants`)."""
         occ, phase = self._loop_states(grid, axis, embed)
-        if grid not in self._minors:
-            self._minors[grid] = link_minors(occ)
-        return link_determinants(occ, axis, phase, minors=self._minors[grid])
+        minors = self._minors.get(grid)
+        if minors is None:
+            mu = link_minors(occ)
+            minors = self._minors[grid] = (mu, None if mu is None else np.conj(mu))
+        return link_determinants(occ, axis, phase, minors=minors[0], conj_minors=minors[1])
 
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""

@@ -114,7 +114,7 @@ def link_minors(vectors: np.ndarray) -> np.ndarray | None:
 
 
 def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None, *,
-                      minors: np.ndarray | None = None) -> np.ndarray:
+                      minors: np.ndarray | None = None, conj_minors: np.ndarray | None = None) -> np.ndarray:
     """``det <u(k)| P |u(k + dk)>`` between neighbours along a periodic grid axis, shape ``(*grid,)``.
 
     By the Cauchy–Binet formula the determinant of ``V(k)^† P V(k + dk)`` is ``Σ_S conj(μ_S(k)) φ_S μ_S(k + dk)``
@@ -122,7 +122,8 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     ``φ_S`` the product of the diagonal of ``P`` over ``S``. That is a few multiplications per k-point instead of
     a matrix product and a determinant, and ``μ`` serves every axis (pass it as ``minors``). Used when ``P`` is
     diagonal (or absent), m <= 2 and there are at most :data:`PLUCKER_LIMIT` sets; otherwise the determinants of
-    :func:`link_matrices`. Equal to those up to rounding.
+    :func:`link_matrices`. Equal to those up to rounding. ``conj_minors``, the conjugate of ``minors``, may be
+    passed too when it is kept for several axes.
     """
     axis = axis + vectors.ndim if axis < 0 else axis
     n, m = vectors.shape[-2:]
@@ -130,7 +131,7 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     if not _plucker_pays(n, m) or (phase is not None and diagonal is None):
         return batched_det(link_matrices(vectors, axis, phase))
     mu = plucker_coordinates(vectors) if minors is None else minors
-    bra = np.conj(mu)
+    bra = np.conj(mu) if minors is None or conj_minors is None else conj_minors
     ket = mu
     if diagonal is not None:
         phi = np.array([np.prod(diagonal[list(rows)]) for rows in combinations(range(n), m)])
@@ -141,8 +142,8 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     def part(start, stop):
         return (slice(None),) * axis + (slice(start, stop),)
 
-    out[part(0, count - 1)] = np.einsum("...s,...s->...", bra[part(0, count - 1)], ket[part(1, count)])
-    out[part(count - 1, count)] = np.einsum("...s,...s->...", bra[part(count - 1, count)], ket[part(0, 1)])
+    np.einsum("...s,...s->...", bra[part(0, count - 1)], ket[part(1, count)], out=out[part(0, count - 1)])
+    np.einsum("...s,...s->...", bra[part(count - 1, count)], ket[part(0, 1)], out=out[part(count - 1, count)])
     return out
 
 
