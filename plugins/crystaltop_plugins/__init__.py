@@ -7,4 +7,5 @@ API :mod:`crystaltop.plugin` (and numpy).
 
 #: module names of the built-in plugins, in the order they are listed in pyproject.toml
 BUILTIN = ("chern", "polarization", "z2", "weak_indices", "parity_indices", "inversion_indicator",
-           "rotation_eigenvalues", "rotation_indices", "mirror_chern", "corner_charge", "dislocation_response")
+           "rotation_eigenvalues", "rotation_indices", "mirror_chern", "corner_charge", "dislocation_response",
+           "disclination_charge")
