@@ -237,6 +237,8 @@ def _disclination_jobs(model, record, filling, ions, sizes, tolerance):
 
     jobs = []
     size = int(sizes["disclination"])
+    if ions is None:  # the background the prediction assumed (its default is at 1a, the builders' on the sites)
+        ions = record.details.get("ion_background")
     for rec in record.details.get("per_case", ()):
         core, omega, q = rec["core"], float(rec["frank_angle"]), float(rec["charge"])
         label = f"Ω={_angle_text(omega)} at {core}"

@@ -370,3 +370,12 @@ def test_the_band_representations_have_the_rotation_indices_of_the_docstring():
     for orbit, chi in [("2b", (0, -2)), ("3c", (-2, 0))]:
         b = brackets("6", orbit)
         assert (b("2z", "M", 1), b("3z+", "K", 1)) == chi
+
+
+def test_verify_defects_without_ions_builds_the_samples_with_the_background_the_prediction_assumed():
+    """The plugin's default background (1a) is not the builders' (the sites): verify_defects, given no ions, reads
+    the background from the record, so each of the seven C4 SSH cases is measured as predicted."""
+    report = ct.verify_defects(c4_breathing_square(gamma=0.3), "4/mmm", 1, invariants=[NAME],
+                               sizes={"disclination": 14})
+    checks = [c for c in report.verification if c.prediction == NAME]
+    assert len(checks) == 7 and all(c.agree for c in checks), [(c.case, c.measured) for c in checks]
