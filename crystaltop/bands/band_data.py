@@ -489,17 +489,19 @@ class BandData:
         self.eigensystems(grids)
         states = [self._loop_states(g, a, True) for g, a in zip(grids, axes)]
         groups: dict[tuple, list[int]] = {}
-        for i, (g, a) in enumerate(zip(grids, axes)):
-            groups.setdefault((g.shape[:a] + g.shape[a + 1:], g.shape[a]), []).append(i)
+        for i, (g, a) in enumerate(zip(grids, axes)):  # by the number of loops and their length
+            groups.setdefault((g.size // g.shape[a], g.shape[a]), []).append(i)
         out: list = [None] * len(grids)
         n = self.model.n_states
-        for (other, _), members in groups.items():
-            loop = len(other)  # the loop axis after the others, in each grid's order
-            occ = np.stack([np.moveaxis(states[i][0], axes[i], loop) for i in members])
-            phase = np.stack([states[i][1] for i in members]).reshape((len(members),) + (1,) * (loop + 1) + (n, n))
-            w = ordered_product(link_matrices(occ, loop + 1, phase), loop + 1)
+        for (count, length), members in groups.items():
+            # each grid as (loops, loop points, n, m): the loop axis after the others, in the grid's order
+            occ = np.stack([np.moveaxis(states[i][0], axes[i], grids[i].dim - 1).reshape(count, length, n, -1)
+                            for i in members])
+            phase = np.stack([states[i][1] for i in members]).reshape(len(members), 1, 1, n, n)
+            w = ordered_product(link_matrices(occ, 2, phase), 2)
             for j, i in enumerate(members):
-                out[i] = w[j]
+                g, a = grids[i], axes[i]
+                out[i] = w[j].reshape(g.shape[:a] + g.shape[a + 1:] + w.shape[-2:])
         return out
 
     def wilson_loop_determinants(self, grid: Grid, axis: int) -> np.ndarray:
