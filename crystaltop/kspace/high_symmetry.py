@@ -673,6 +673,12 @@ def rotation_sectors(n: int, power: int = 1) -> np.ndarray:
     n = int(n)
     if n < 1 or power not in (1, -1):
         raise CrystaltopError(f"rotation sectors need n >= 1 and power ±1, got n={n}, power={power}")
+    return _sectors(n, int(power)).copy()
+
+
+@lru_cache(maxsize=64)
+def _sectors(n: int, power: int) -> np.ndarray:
+    # a handful of (n, power) pairs; every eigenvalue count of every report asks for them again
     p = np.arange(1, n + 1)
     angle = 2 * np.pi * (p - 1) / n if power == 1 else np.pi * (2 * p - 1) / n
     return np.exp(1j * angle)
@@ -696,11 +702,13 @@ def _phase_text(f: Fraction, sign: str = "") -> str:
     return "e^{" + (sign or ("" if f > 0 else "-")) + core + "}"
 
 
+@lru_cache(maxsize=64)
 def sector_names(n: int, power: int = 1) -> tuple[str, ...]:
     """Text of each eigenvalue of :func:`rotation_sectors`, e.g. ``('1', 'i', '-1', '-i')``."""
     return tuple(_phase_text(_phase_fraction(z)) for z in rotation_sectors(n, power))
 
 
+@lru_cache(maxsize=256)
 def pair_name(z: complex) -> str:
     """Text of the complex-conjugate pair {z, z*}, e.g. ``'e^{±iπ/4}'``, ``'±i'``; a real z is named alone."""
     f = _phase_fraction(z)
