@@ -311,7 +311,7 @@ class Report:
             return []
         rows = [("prediction", "case", "predicted", "measured", "agree")]
         rows += [(c.prediction, c.case, c.predicted, c.measured, c.verdict) for c in self.verification]
-        widths = [min(max(len(r[i]) for r in rows), cap) for i, cap in enumerate((22, 16, 34, 44, 12))]
+        widths = [min(max(len(r[i]) for r in rows), cap) for i, cap in enumerate((22, 26, 34, 44, 12))]
         lines = ["", "defects on finite samples (predicted / measured / agree):"]
         for j, row in enumerate(rows):
             lines.append("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())

@@ -241,7 +241,8 @@ def _disclination_jobs(model, record, filling, ions, sizes, tolerance):
         ions = record.details.get("ion_background")
     for rec in record.details.get("per_case", ()):
         core, omega, q = rec["core"], float(rec["frank_angle"]), float(rec["charge"])
-        label = f"Ω={_angle_text(omega)} at {core}"
+        where = ", ".join(f"{float(x):g}" for x in np.atleast_1d(core))
+        label = f"Ω={_angle_text(omega)} at {rec.get('core_name', '')} ({where})".replace(" at  (", " at (")
         build = (lambda core=core, omega=omega: disclination(model, omega, size, core=core, filling=filling,
                                                              ions=ions))
         jobs.append(_Job("disclination_charge", label, build,
