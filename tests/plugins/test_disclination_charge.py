@@ -302,18 +302,23 @@ def test_the_polarization_term_follows_from_the_counting_rule_for_every_integer_
                     assert abs((float(lhs) - rhs + 0.5) % 1.0 - 0.5) < 1e-6
 
 
-@pytest.mark.parametrize("symbol", list(GROUPS))
-def test_every_wannier_content_with_the_same_eigenvalues_binds_the_same_charges(symbol):
-    """Module docstring, item 2: over every content of up to three bands (all site eigenvalues, no time
-    reversal), contents with equal occupied rotation eigenvalues give equal predictions (five bands were checked
-    in the derivation)."""
+def _band_table(symbol):
+    """(n, W, centre orbits, band-representation table, its columns and rows) of the group ``symbol``."""
     lattice = GROUPS[symbol]
     group, rot, n, w = _setup(symbol, lattice)
     momenta = high_symmetry_momenta(group, lattice)
     rotations = [(op.label, op.fold, n // op.fold, {m.label: m.k for m in momenta if op.label in m.rotations})
                  for op in rot]
     orbits = dc.centre_orbits(w, n)
-    table, columns, _ = dc.band_representation_table(orbits, w, n, rotations)
+    return (n, w, orbits) + tuple(dc.band_representation_table(orbits, w, n, rotations))
+
+
+@pytest.mark.parametrize("symbol", list(GROUPS))
+def test_every_wannier_content_with_the_same_eigenvalues_binds_the_same_charges(symbol):
+    """Module docstring, item 2: over every content of up to three bands (all site eigenvalues, no time
+    reversal), contents with equal occupied rotation eigenvalues give equal predictions (five bands were checked
+    in the derivation)."""
+    n, w, orbits, table, columns, _ = _band_table(symbol)
     sizes = [len(orbits[o]["sites"]) for o, _ in columns]
     seen = {}
 
@@ -354,13 +359,7 @@ def test_the_band_representations_have_the_rotation_indices_of_the_docstring():
     """Module docstring, item 2: 1b s of p4 gives χ^(4) = ([X1], [M1], [M2]) = (−1, −1, 0) and 2b s, 3c s of p6
     give χ^(6) = ([M1^(2)], [K1^(3)]) = (0, −2) and (−2, 0) (PHYSICS.md §6, Benalcazar, Li, Hughes 2019)."""
     def brackets(symbol, orbit_name):
-        lattice = GROUPS[symbol]
-        group, rot, n, w = _setup(symbol, lattice)
-        momenta = high_symmetry_momenta(group, lattice)
-        rotations = [(op.label, op.fold, n // op.fold, {m.label: m.k for m in momenta if op.label in m.rotations})
-                     for op in rot]
-        orbits = dc.centre_orbits(w, n)
-        table, columns, rows = dc.band_representation_table(orbits, w, n, rotations)
+        _, _, orbits, table, columns, rows = _band_table(symbol)
         j = next(i for i, (o, s) in enumerate(columns) if orbits[o]["name"] == orbit_name and s == 0)
         col = dict(zip(rows, table[:, j]))
         return lambda label, m, p: int(col[(label, m, p - 1)] - col[(label, "Γ", p - 1)])
