@@ -83,6 +83,81 @@ def _match_points(points: np.ndarray, stored_keys: np.ndarray):
     return np.maximum(j, 0), j >= 0
 
 
+class _MeshStore:
+    """The eigensystems of the points of one uniform mesh ``j_i / N_i``, as they become known.
+
+    Most grids of a report (planes, half planes, the full mesh, its half mesh) and most single momenta (TRIMs,
+    high-symmetry momenta, the points of oblique mirror planes) lie on the mesh of the first grid asked for. Their
+    points are then found by rounding ``k·N`` and read from one array, instead of being matched against every
+    grid cached so far. The arrays are allocated once and filled where points are diagonalised (untouched pages
+    cost no memory); the full mesh, once asked for, is served as the arrays themselves.
+    """
+
+    TOL = 1e-9  # as in _axis_match
+
+    def __init__(self, shape: tuple[int, ...], n: int):
+        self.shape = shape
+        self.energies = np.empty(shape + (n,))
+        self.vectors = np.empty(shape + (n, n), dtype=complex)
+        self.known = np.zeros(shape, dtype=bool)
+        self._indices: dict[Grid, tuple | None] = {}
+
+    def _axis(self, values: np.ndarray, n: int) -> np.ndarray | None:
+        x = np.mod(values, 1.0) * n
+        j = np.rint(x)
+        if np.any(np.abs(x - j) > self.TOL * n):
+            return None
+        return j.astype(int) % n
+
+    def grid_index(self, grid: Grid) -> tuple[np.ndarray, ...] | None:
+        """Index arrays of each axis of ``grid`` in the mesh, or None if some point is off the mesh."""
+        if grid in self._indices:
+            return self._indices[grid]
+        out = []
+        for i, n in enumerate(self.shape):
+            m = grid.shape[i]
+            if grid.periodic[i] and n % m == 0:  # j/M inside j/N, every (N/M)-th
+                out.append(np.arange(m) * (n // m))
+                continue
+            j = self._axis(grid._arrays[i], n)
+            if j is None:
+                out = None
+                break
+            out.append(j)
+        found = None if out is None else tuple(out)
+        self._indices[grid] = found
+        return found
+
+    def is_whole(self, grid: Grid, idx) -> bool:
+        """Whether ``grid`` is the mesh itself, in its order."""
+        return grid.shape == self.shape and all(np.array_equal(a, np.arange(n)) for a, n in zip(idx, self.shape))
+
+    def point_index(self, k: np.ndarray) -> tuple[np.ndarray, tuple[np.ndarray, ...]]:
+        """The rows of ``k`` ``(m, dim)`` that lie on the mesh and their indices in it."""
+        x = np.mod(k, 1.0) * np.asarray(self.shape, dtype=float)
+        j = np.rint(x)
+        on = np.all(np.abs(x - j) <= self.TOL * np.asarray(self.shape, dtype=float), axis=1)
+        rows = np.flatnonzero(on)
+        j = j[rows].astype(int) % np.asarray(self.shape)
+        return rows, tuple(j.T)
+
+    def record(self, k: np.ndarray, energies: np.ndarray, vectors: np.ndarray) -> None:
+        """Keep the eigensystems of the points ``k`` ``(m, dim)`` that lie on the mesh (and are not known yet:
+        what was handed out never changes)."""
+        rows, idx = self.point_index(k)
+        new = ~self.known[idx]
+        if new.any():
+            rows, idx = rows[new], tuple(a[new] for a in idx)
+            self.energies[idx], self.vectors[idx] = energies[rows], vectors[rows]
+            self.known[idx] = True
+
+    def holds(self, k: np.ndarray) -> np.ndarray:
+        """Whether each of the points ``k`` ``(m, dim)`` lies on the mesh."""
+        on = np.zeros(k.shape[0], dtype=bool)
+        on[self.point_index(k)[0]] = True
+        return on
+
+
 @dataclass
 class DiagonalisationStats:
     """Bookkeeping of the eigen-decompositions done by one :class:`BandData`."""
@@ -141,7 +216,10 @@ class BandData:
         # mesh, once it is cached)
         self._maximal: list[Grid] = []
         self._tables: dict[Grid, list] = {}
-        # points diagonalised one by one (not on a grid): reduced k, energies, eigenvectors
+        # the points of the uniform mesh of the first grid with a closed axis (see _MeshStore), or None
+        self._store: _MeshStore | None = None
+        self._store_tried = False
+        # points diagonalised one by one, not on a grid nor on the mesh store: reduced k, energies, eigenvectors
         n = int(model.n_states)
         self._scattered_k = np.zeros((0, int(model.dim)))
         self._scattered_e = np.zeros((0, n))
@@ -174,6 +252,8 @@ class BandData:
             vectors *= np.exp(2j * np.pi * self._gauge_rng.random(energies.shape))[:, None, :]
         self.stats.k_points += total
         self.stats.batches.append((what, total))
+        if self._store is not None:  # every point diagonalised on the mesh is found there from now on
+            self._store.record(flat_k, energies, vectors)
         return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
 
     def _eigh(self, kc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -216,8 +296,38 @@ class BandData:
             kk = k.reshape(-1, k.shape[-1])[bad]
             raise NonHermitianError(f"H(k) is not Hermitian at k={format_k(kk)}: |H - H†| = {dev_all[bad]:.2e}")
 
+    #: largest mesh store allocated (bytes of eigenvectors; the pages are touched only where points are known)
+    STORE_BYTES = 1 << 29
+
+    def _store_for(self, grid: Grid) -> _MeshStore | None:
+        """The mesh store, made on the first grid with a closed axis: the mesh of its longest closed axis."""
+        if self._store is None and not self._store_tried and any(grid.periodic):
+            self._store_tried = True
+            n = max(m for m, p in zip(grid.shape, grid.periodic) if p)
+            states = int(self.model.n_states)
+            if n ** grid.dim * states * states * 16 <= self.STORE_BYTES:
+                store = _MeshStore((n,) * grid.dim, states)
+                for cached in self._maximal:  # what is known already (grids and points asked for before)
+                    e, v = self._grids[cached]
+                    store.record(cached.points.reshape(-1, grid.dim), e.reshape(-1, states),
+                                 v.reshape(-1, states, states))
+                if self._scattered_k.shape[0]:
+                    store.record(self._scattered_k, self._scattered_e, self._scattered_v)
+                self._store = store
+        return self._store
+
     def eigensystem(self, grid: Grid) -> tuple[np.ndarray, np.ndarray]:
         """Energies ``(*shape, n)`` (ascending) and eigenvectors ``(*shape, n, n)`` (columns) on a grid."""
+        if grid.dim != self.model.dim:
+            raise ShapeError(f"a {grid.dim}D grid was asked of a {self.model.dim}D model")
+        found = self._grids.get(grid)
+        if found is not None:
+            self.stats.cache_hits += 1
+            return found
+        store = self._store_for(grid)
+        idx = None if store is None else store.grid_index(grid)
+        if idx is not None:
+            return self._from_store(grid, idx)
         out = self._cached(grid)
         if out is not None:
             return out
@@ -228,10 +338,53 @@ class BandData:
             self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
         return out
 
+    def _from_store(self, grid: Grid, idx) -> tuple[np.ndarray, np.ndarray]:
+        """A grid on the mesh store: its unknown points diagonalised (at the grid's own coordinates), then read."""
+        store = self._store
+        sel = np.ix_(*idx)
+        known = store.known[sel]
+        if known.all():
+            self.stats.cache_hits += 1
+        elif not known.any():
+            self._diagonalise(grid.points, grid.describe())
+        else:
+            missing = ~known
+            self._diagonalise(grid.points[missing], f"{grid.describe()} ({int(missing.sum())} new points)")
+            self.stats.cache_hits += 1
+        out = (store.energies, store.vectors) if store.is_whole(grid, idx) else (store.energies[sel],
+                                                                                  store.vectors[sel])
+        self._grids[grid] = out
+        return out
+
     def eigensystems(self, grids) -> list[tuple[np.ndarray, np.ndarray]]:
         """:meth:`eigensystem` of several grids, with every point that none of them can take from the cache
         diagonalised in one batch (each distinct point once, also where the grids share lines)."""
         grids = list(grids)
+        for g in grids:
+            if g.dim != self.model.dim:
+                raise ShapeError(f"a {g.dim}D grid was asked of a {self.model.dim}D model")
+        store = self._store_for(grids[0]) if grids else None
+        idx = [None if store is None else store.grid_index(g) for g in grids]
+        if store is None or any(i is None for i in idx):
+            return self._eigensystems_apart(grids)
+        # the points no grid can take from the store, each once, in the order they are first asked for
+        todo = [(g, i) for g, i in zip(grids, idx) if g not in self._grids and not store.known[np.ix_(*i)].all()]
+        if len(todo) > 1:
+            flat, points, what = [], [], []
+            for g, i in todo:
+                missing = ~store.known[np.ix_(*i)]
+                sub = tuple(np.broadcast_to(a, g.shape)[missing] for a in np.ix_(*i))
+                flat.append(np.ravel_multi_index(sub, store.shape))
+                points.append(g.points[missing])
+                what.append(g.describe())
+            flat, points = np.concatenate(flat), np.concatenate(points)
+            _, first = np.unique(flat, return_index=True)
+            first.sort()
+            self._diagonalise(points[first], f"{', '.join(what)} ({first.size} new points)")
+        return [self.eigensystem(g) for g in grids]
+
+    def _eigensystems_apart(self, grids) -> list[tuple[np.ndarray, np.ndarray]]:
+        """:meth:`eigensystems` for grids off the mesh store (matched against the cached grids)."""
         out = [self._cached(g) for g in grids]
         todo = [i for i, o in enumerate(out) if o is None]
         if len(todo) <= 1:
@@ -301,8 +454,8 @@ class BandData:
         return rows, tuple(idx)
 
     def _known_part(self, grid: Grid) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """Arrays for a new grid holding the points that cached grids (planes, lines, meshes) and earlier
-        scattered points already have, and the mask of those points."""
+        """Arrays for a new grid (off the mesh store) holding the points that cached grids (planes, lines,
+        meshes), the mesh store and earlier scattered points already have, and the mask of those points."""
         n = self.model.n_states
         energies = np.empty(grid.shape + (n,))
         vectors = np.empty(grid.shape + (n, n), dtype=complex)
@@ -314,6 +467,13 @@ class BandData:
                 mine, theirs = np.ix_(*shared[0]), np.ix_(*shared[1])
                 energies[mine], vectors[mine] = e[theirs], v[theirs]
                 known[mine] = True
+        if self._store is not None:
+            flat_e, flat_v = energies.reshape(-1, n), vectors.reshape(-1, n, n)
+            rows, idx = self._store.point_index(grid.points.reshape(-1, grid.dim))
+            hit = self._store.known[idx]
+            rows, idx = rows[hit], tuple(a[hit] for a in idx)
+            flat_e[rows], flat_v[rows] = self._store.energies[idx], self._store.vectors[idx]
+            known.reshape(-1)[rows] = True
         if self._scattered_k.shape[0]:
             rows, mine = self._locate(self._scattered_k, grid)
             if rows.size:
@@ -344,7 +504,6 @@ class BandData:
         k = np.atleast_2d(np.asarray(k, dtype=float))
         if k.ndim != 2 or k.shape[-1] != self.model.dim:
             raise ShapeError(f"k-points must have shape (m, {self.model.dim}), got {k.shape}")
-        n = self.model.n_states
         m = k.shape[0]
         if m == 1:
             key = k.tobytes()
@@ -362,7 +521,18 @@ class BandData:
         energies = np.empty((m, n))
         vectors = np.empty((m, n, n), dtype=complex)
         todo = np.arange(m)
-        for cached in self._maximal:
+        unknown = np.zeros(0, dtype=int)  # points on the mesh store that nothing holds yet
+        if self._store is not None:
+            store = self._store
+            rows, idx = store.point_index(k)
+            hit = store.known[idx]
+            take = tuple(a[hit] for a in idx)
+            energies[rows[hit]], vectors[rows[hit]] = store.energies[take], store.vectors[take]
+            unknown = rows[~hit]
+            off = np.ones(m, dtype=bool)
+            off[rows] = False
+            todo = np.flatnonzero(off)
+        for cached in self._maximal if todo.size else ():
             rows, sel = self._locate(k[todo], cached)
             if rows.size:
                 e, v = self._grids[cached]
@@ -377,13 +547,18 @@ class BandData:
             rows = todo[hit]
             energies[rows], vectors[rows] = self._scattered_e[j[hit]], self._scattered_v[j[hit]]
             todo = todo[~hit]
+        if unknown.size:
+            todo = np.sort(np.concatenate([todo, unknown]))
         if todo.size:
             uniq, inverse = _unique_rows(_point_keys(k[todo]))
             e, v = self._diagonalise(uniq, f"{len(uniq)} points")
             energies[todo], vectors[todo] = e[inverse], v[inverse]
-            self._scattered_k = np.concatenate([self._scattered_k, uniq])
-            self._scattered_e = np.concatenate([self._scattered_e, e])
-            self._scattered_v = np.concatenate([self._scattered_v, v])
+            # the points on the mesh store are found there from now on; the others are kept as scattered points
+            off = np.ones(uniq.shape[0], dtype=bool) if self._store is None else ~self._store.holds(uniq)
+            if off.any():
+                self._scattered_k = np.concatenate([self._scattered_k, uniq[off]])
+                self._scattered_e = np.concatenate([self._scattered_e, e[off]])
+                self._scattered_v = np.concatenate([self._scattered_v, v[off]])
         else:
             self.stats.cache_hits += 1
         return energies, vectors

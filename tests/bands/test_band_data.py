@@ -81,3 +81,33 @@ def test_a_mesh_asked_after_its_planes_diagonalises_only_the_points_not_yet_know
     assert bands.stats.k_points == 64  # 8 + 56, not 8 + 64
     ref = BandData(TwoBandPlane(1.0), filling=1).eigensystem(uniform_mesh((8, 8)))[0]
     assert np.allclose(e_full, ref) and np.allclose(e_full[0], e_line[0])
+
+
+def test_a_mesh_that_shares_only_some_points_with_the_first_one_diagonalises_only_the_others():
+    # 16x16 after 24x24: the points j/8 on both axes (8 x 8 of them) are common to the two meshes
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    bands.eigensystem(uniform_mesh((24, 24)))
+    e16, _ = bands.eigensystem(uniform_mesh((16, 16)))
+    assert bands.stats.k_points == 24 * 24 + 16 * 16 - 8 * 8
+    ref = BandData(TwoBandPlane(1.0), filling=1).eigensystem(uniform_mesh((16, 16)))[0]
+    assert np.allclose(e16, ref)
+
+
+def test_points_asked_one_by_one_are_not_diagonalised_again_by_a_later_grid():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    bands.eigensystem(plane(2, 0, 0.0, (8,)))
+    e_pts, _ = bands.at([[0.25, 0.5], [0.5, 0.125], [0.3, 0.3]])  # two on the 8x8 mesh, one off it
+    e_full, _ = bands.eigensystem(uniform_mesh((8, 8)))
+    assert bands.stats.k_points == 8 + 3 + (64 - 8 - 2)
+    assert np.array_equal(e_full[2, 4], e_pts[0]) and np.array_equal(e_full[4, 1], e_pts[1])
+    again, _ = bands.at([[0.3, 0.3], [0.25, 0.5]])
+    assert bands.stats.k_points == 8 + 3 + (64 - 8 - 2) and np.array_equal(again[0], e_pts[2])
+
+
+def test_a_grid_without_a_closed_axis_asked_first_is_not_diagonalised_again_by_a_mesh():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    from crystaltop.kspace import Grid
+
+    bands.eigensystem(Grid(((0.0, 0.5), (0.0, 0.5)), (False, False)))  # the four TRIMs
+    bands.eigensystem(uniform_mesh((8, 8)))
+    assert bands.stats.k_points == 4 + 60
