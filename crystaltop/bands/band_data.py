@@ -100,56 +100,71 @@ class _MeshStore:
         self.energies = np.empty(shape + (n,))
         self.vectors = np.empty(shape + (n, n), dtype=complex)
         self.known = np.zeros(shape, dtype=bool)
-        self._indices: dict[Grid, tuple | None] = {}
+        # the same arrays with the mesh flattened (points by their flat index)
+        self._e = self.energies.reshape(-1, n)
+        self._v = self.vectors.reshape(-1, n, n)
+        self._known = self.known.reshape(-1)
+        self._scale = np.asarray(shape, dtype=float)
+        self._strides = np.array([int(np.prod(shape[i + 1:])) for i in range(len(shape))])
+        self._indices: dict[Grid, np.ndarray | None] = {}
 
-    def _axis(self, values: np.ndarray, n: int) -> np.ndarray | None:
-        x = np.mod(values, 1.0) * n
-        j = np.rint(x)
-        if np.any(np.abs(x - j) > self.TOL * n):
-            return None
-        return j.astype(int) % n
-
-    def grid_index(self, grid: Grid) -> tuple[np.ndarray, ...] | None:
-        """Index arrays of each axis of ``grid`` in the mesh, or None if some point is off the mesh."""
+    def grid_index(self, grid: Grid) -> np.ndarray | None:
+        """The flat index in the mesh of every point of ``grid`` (shape ``grid.shape``), or None if some point is
+        off the mesh."""
         if grid in self._indices:
             return self._indices[grid]
-        out = []
+        flat = np.zeros((1,) * grid.dim, dtype=int)
         for i, n in enumerate(self.shape):
             m = grid.shape[i]
             if grid.periodic[i] and n % m == 0:  # j/M inside j/N, every (N/M)-th
-                out.append(np.arange(m) * (n // m))
-                continue
-            j = self._axis(grid._arrays[i], n)
-            if j is None:
-                out = None
-                break
-            out.append(j)
-        found = None if out is None else tuple(out)
-        self._indices[grid] = found
-        return found
+                j = np.arange(m) * (n // m)
+            else:
+                x = np.mod(grid._arrays[i], 1.0) * n
+                j = np.rint(x)
+                if np.any(np.abs(x - j) > self.TOL * n):
+                    flat = None
+                    break
+                j = j.astype(int) % n
+            flat = flat + (j * self._strides[i]).reshape((1,) * i + (m,) + (1,) * (grid.dim - i - 1))
+        self._indices[grid] = flat
+        return flat
 
-    def is_whole(self, grid: Grid, idx) -> bool:
+    def is_whole(self, grid: Grid, flat: np.ndarray) -> bool:
         """Whether ``grid`` is the mesh itself, in its order."""
-        return grid.shape == self.shape and all(np.array_equal(a, np.arange(n)) for a, n in zip(idx, self.shape))
+        return grid.shape == self.shape and np.array_equal(flat.reshape(-1), np.arange(flat.size))
 
-    def point_index(self, k: np.ndarray) -> tuple[np.ndarray, tuple[np.ndarray, ...]]:
-        """The rows of ``k`` ``(m, dim)`` that lie on the mesh and their indices in it."""
-        x = np.mod(k, 1.0) * np.asarray(self.shape, dtype=float)
+    def read(self, flat: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Energies and eigenvectors of known points by flat index (any shape of ``flat``)."""
+        n = self._e.shape[1]
+        e = np.take(self._e, flat.reshape(-1), axis=0).reshape(flat.shape + (n,))
+        v = np.take(self._v, flat.reshape(-1), axis=0).reshape(flat.shape + (n, n))
+        return e, v
+
+    def point_index(self, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """The rows of ``k`` ``(m, dim)`` that lie on the mesh and their flat indices in it."""
+        x = np.mod(k, 1.0) * self._scale
         j = np.rint(x)
-        on = np.all(np.abs(x - j) <= self.TOL * np.asarray(self.shape, dtype=float), axis=1)
+        on = np.all(np.abs(x - j) <= self.TOL * self._scale, axis=1)
         rows = np.flatnonzero(on)
-        j = j[rows].astype(int) % np.asarray(self.shape)
-        return rows, tuple(j.T)
+        j = j[rows].astype(int) % self._scale.astype(int)
+        return rows, j @ self._strides
 
-    def record(self, k: np.ndarray, energies: np.ndarray, vectors: np.ndarray) -> None:
-        """Keep the eigensystems of the points ``k`` ``(m, dim)`` that lie on the mesh (and are not known yet:
-        what was handed out never changes)."""
-        rows, idx = self.point_index(k)
-        new = ~self.known[idx]
-        if new.any():
-            rows, idx = rows[new], tuple(a[new] for a in idx)
-            self.energies[idx], self.vectors[idx] = energies[rows], vectors[rows]
-            self.known[idx] = True
+    def record(self, k: np.ndarray, energies: np.ndarray, vectors: np.ndarray, flat=None) -> None:
+        """Keep the eigensystems of the points ``k`` ``(m, dim)`` that lie on the mesh (``flat``: their flat
+        indices, when every point is on it and they are known) and are not known yet: what was handed out never
+        changes."""
+        if flat is None:
+            rows, flat = self.point_index(k)
+        else:
+            rows = None
+        new = ~self._known[flat]
+        if not new.all():
+            rows = np.flatnonzero(new) if rows is None else rows[new]
+            flat = flat[new]
+        if flat.size:
+            self._e[flat] = energies if rows is None else energies[rows]
+            self._v[flat] = vectors if rows is None else vectors[rows]
+            self._known[flat] = True
 
     def holds(self, k: np.ndarray) -> np.ndarray:
         """Whether each of the points ``k`` ``(m, dim)`` lies on the mesh."""
@@ -237,7 +252,9 @@ class BandData:
         self.gap_log: list[float] = []
 
     # ------------------------------------------------------------------ diagonalisation
-    def _diagonalise(self, k: np.ndarray, what: str) -> tuple[np.ndarray, np.ndarray]:
+    def _diagonalise(self, k: np.ndarray, what: str, *, on_store=None) -> tuple[np.ndarray, np.ndarray]:
+        """Eigensystems of the momenta ``k`` ``(..., dim)``, counted in the statistics and kept in the mesh store
+        (``on_store``: the flat index in it of every point, when the caller knows that all lie on it)."""
         n = self.model.n_states
         shape = k.shape[:-1]
         flat_k = k.reshape(-1, k.shape[-1])
@@ -253,7 +270,7 @@ class BandData:
         self.stats.k_points += total
         self.stats.batches.append((what, total))
         if self._store is not None:  # every point diagonalised on the mesh is found there from now on
-            self._store.record(flat_k, energies, vectors)
+            self._store.record(flat_k, energies, vectors, on_store)
         return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
 
     def _eigh(self, kc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -338,21 +355,20 @@ class BandData:
             self._maximal = [g for g in self._maximal if g.indices_in(grid) is None] + [grid]
         return out
 
-    def _from_store(self, grid: Grid, idx) -> tuple[np.ndarray, np.ndarray]:
+    def _from_store(self, grid: Grid, flat: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """A grid on the mesh store: its unknown points diagonalised (at the grid's own coordinates), then read."""
         store = self._store
-        sel = np.ix_(*idx)
-        known = store.known[sel]
+        known = store._known[flat]
         if known.all():
             self.stats.cache_hits += 1
         elif not known.any():
-            self._diagonalise(grid.points, grid.describe())
+            self._diagonalise(grid.points, grid.describe(), on_store=flat.reshape(-1))
         else:
             missing = ~known
-            self._diagonalise(grid.points[missing], f"{grid.describe()} ({int(missing.sum())} new points)")
+            self._diagonalise(grid.points[missing], f"{grid.describe()} ({int(missing.sum())} new points)",
+                              on_store=flat[missing])
             self.stats.cache_hits += 1
-        out = (store.energies, store.vectors) if store.is_whole(grid, idx) else (store.energies[sel],
-                                                                                  store.vectors[sel])
+        out = (store.energies, store.vectors) if store.is_whole(grid, flat) else store.read(flat)
         self._grids[grid] = out
         return out
 
@@ -368,19 +384,18 @@ class BandData:
         if store is None or any(i is None for i in idx):
             return self._eigensystems_apart(grids)
         # the points no grid can take from the store, each once, in the order they are first asked for
-        todo = [(g, i) for g, i in zip(grids, idx) if g not in self._grids and not store.known[np.ix_(*i)].all()]
+        todo = [(g, i) for g, i in zip(grids, idx) if g not in self._grids and not store._known[i].all()]
         if len(todo) > 1:
             flat, points, what = [], [], []
             for g, i in todo:
-                missing = ~store.known[np.ix_(*i)]
-                sub = tuple(np.broadcast_to(a, g.shape)[missing] for a in np.ix_(*i))
-                flat.append(np.ravel_multi_index(sub, store.shape))
+                missing = ~store._known[i]
+                flat.append(i[missing])
                 points.append(g.points[missing])
                 what.append(g.describe())
             flat, points = np.concatenate(flat), np.concatenate(points)
             _, first = np.unique(flat, return_index=True)
             first.sort()
-            self._diagonalise(points[first], f"{', '.join(what)} ({first.size} new points)")
+            self._diagonalise(points[first], f"{', '.join(what)} ({first.size} new points)", on_store=flat[first])
         return [self.eigensystem(g) for g in grids]
 
     def _eigensystems_apart(self, grids) -> list[tuple[np.ndarray, np.ndarray]]:
@@ -468,11 +483,10 @@ class BandData:
                 energies[mine], vectors[mine] = e[theirs], v[theirs]
                 known[mine] = True
         if self._store is not None:
-            flat_e, flat_v = energies.reshape(-1, n), vectors.reshape(-1, n, n)
-            rows, idx = self._store.point_index(grid.points.reshape(-1, grid.dim))
-            hit = self._store.known[idx]
-            rows, idx = rows[hit], tuple(a[hit] for a in idx)
-            flat_e[rows], flat_v[rows] = self._store.energies[idx], self._store.vectors[idx]
+            rows, flat = self._store.point_index(grid.points.reshape(-1, grid.dim))
+            hit = self._store._known[flat]
+            rows = rows[hit]
+            energies.reshape(-1, n)[rows], vectors.reshape(-1, n, n)[rows] = self._store.read(flat[hit])
             known.reshape(-1)[rows] = True
         if self._scattered_k.shape[0]:
             rows, mine = self._locate(self._scattered_k, grid)
@@ -524,10 +538,9 @@ class BandData:
         unknown = np.zeros(0, dtype=int)  # points on the mesh store that nothing holds yet
         if self._store is not None:
             store = self._store
-            rows, idx = store.point_index(k)
-            hit = store.known[idx]
-            take = tuple(a[hit] for a in idx)
-            energies[rows[hit]], vectors[rows[hit]] = store.energies[take], store.vectors[take]
+            rows, flat = store.point_index(k)
+            hit = store._known[flat]
+            energies[rows[hit]], vectors[rows[hit]] = store.read(flat[hit])
             unknown = rows[~hit]
             off = np.ones(m, dtype=bool)
             off[rows] = False
