@@ -214,16 +214,18 @@ class BlochFunction(BlochModel):
                 f"{self._describe()} has no representation of operation {op.label}: give D for it or for a "
                 f"generating set of its group (given: {known})")
         n = self.n_states
-        matrix = np.broadcast_to(np.eye(n, dtype=complex), k.shape[:-1] + (n, n))
+        matrix = None
         current = k
         spin = np.eye(2, dtype=complex)
         for index in reversed(word):  # the word g1 g2 ... gm acts with gm first
             gen, provider = self._given[index]
-            matrix = provider(current) @ matrix
+            step = provider(current)
+            matrix = step if matrix is None else step @ matrix  # the first factor alone: no product with 1
             current = np.asarray(gen.acts_on_k(current, self.lattice), dtype=float)
             spin = np.asarray(gen.spin, dtype=complex) @ spin
         if len(word) == 0:
             np.asarray(op.acts_on_k(k, self.lattice))  # LatticeMismatchError if the lattice refuses the operation
+            matrix = np.broadcast_to(np.eye(n, dtype=complex), k.shape[:-1] + (n, n))
         if self.spinful and len(word) > 1:
             overlap = np.trace(np.asarray(op.spin, dtype=complex).conj().T @ spin).real
             if overlap < 0:
