@@ -23,7 +23,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from types import MappingProxyType
-from typing import Any, Mapping
+from typing import Any, Callable, Iterable, Mapping
 
 import numpy as np
 import pluggy
@@ -58,6 +58,7 @@ __all__ = [
     "trims",
     "occupied_eigenvalues",
     "inversion_parities",
+    "DeferredMapping",
     "ELEMENTS",
 ] + _high_symmetry.__all__
 
@@ -267,6 +268,36 @@ def occupied_eigenvalues(bands: BandData, op, momentum) -> np.ndarray:
     except SymmetryBreakingError as exc:
         raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
                                     "symmetry of the model") from None
+
+
+class DeferredMapping(Mapping):
+    """A read-only mapping whose values are made when first read, for details that only a rendered report reads
+    (plain-text summaries): ``DeferredMapping(keys, make)`` holds ``make(key)`` under each key.
+
+    It is a Mapping like a dict of the same items (``==``, ``dict(...)`` and JSON export read every value), and
+    each value is made once.
+    """
+
+    def __init__(self, keys: Iterable, make: Callable[[Any], Any]):
+        self._keys = tuple(keys)
+        self._make = make
+        self._made: dict = {}
+
+    def __getitem__(self, key):
+        if key not in self._made:
+            if key not in self._keys:
+                raise KeyError(key)
+            self._made[key] = self._make(key)
+        return self._made[key]
+
+    def __iter__(self):
+        return iter(self._keys)
+
+    def __len__(self) -> int:
+        return len(self._keys)
+
+    def __repr__(self) -> str:
+        return repr(dict(self))
 
 
 def _trim_text(k) -> str:

@@ -28,7 +28,7 @@ from __future__ import annotations
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, GapClosedError, MeshTooCoarseError
-from crystaltop.plugin import Grid, Invariant, Outcome, Requirements, hookimpl
+from crystaltop.plugin import DeferredMapping, Grid, Invariant, Outcome, Requirements, hookimpl
 
 #: a centre at k_{j+1} must stay farther than this fraction of the half-gap at k_j from the tracked midpoint z_j
 GAP_CHECK = 0.3
@@ -263,6 +263,7 @@ class Z2Index(Invariant):
                 m *= 2
             flows[spec["key"]], meshes[spec["key"]] = flow, m
         values = {key: f["z2"] for key, f in flows.items()}
+        by_key = {spec["key"]: spec for spec in planes}
         if dim == 2:
             value = values["zone"]
         else:
@@ -286,9 +287,10 @@ class Z2Index(Invariant):
             "smallest_wilson_eigenvalue_modulus": min(f["norm"] for f in flows.values()),
             "refined_steps": {key: f["added"] for key, f in flows.items()},
             "loop_mesh": meshes,
-            "flow": {key: flow_text(spec, flows[spec["key"]]) for spec, key in ((s, s["key"]) for s in planes)},
-            "centres": {key: {"pump": np.round(f["pump"], 6).tolist(), "centres": np.round(f["centres"], 5).tolist()}
-                        for key, f in flows.items()},
+            # text and centre lists are read only when a report is rendered or exported: made then
+            "flow": DeferredMapping([s["key"] for s in planes], lambda key: flow_text(by_key[key], flows[key])),
+            "centres": DeferredMapping(flows, lambda key: {"pump": np.round(flows[key]["pump"], 6).tolist(),
+                                                           "centres": np.round(flows[key]["centres"], 5).tolist()}),
         }
         notes = []
         if dim == 3:
