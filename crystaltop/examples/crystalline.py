@@ -76,9 +76,10 @@ def breathing_kagome(t_up: float = 0.2, t_down: float = 1.0) -> LatticeModel:
     on :data:`HEXAGONAL`); its bonds carry ``−t_up``, the bonds of the triangles between cells ``−t_down``. Those
     are centred at Wyckoff 1b of p3 — (1/3, 2/3) in the 120° hexagonal axes of the International Tables, the
     Cartesian point (0, 1/√3), reduced (2/3, 2/3) on :data:`HEXAGONAL`. For ``t_down > t_up > 0`` the lowest band is
-    their bonding state: at filling 1 the Wannier centre sits at 1b, χ^(3) = (−1, 1) and the corner charge is e/3
-    (PHYSICS.md §6, Benalcazar, Li, Hughes 2019), with K = (4π/3)(1, 0) (crystaltop.kspace.high_symmetry); the gap
-    closes at ``t_up = t_down``.
+    their bonding state: at filling 1 the Wannier centre sits at 1b and χ^(3) = (−1, 1) (PHYSICS.md §6, Benalcazar,
+    Li, Hughes 2019), with K = (4π/3)(1, 0) (crystaltop.kspace.high_symmetry). The polarization is not zero, so the
+    corner charge depends on the flake's centre: −e/3 (≡ 2e/3) on a triangle of whole cells about the origin, e/3
+    about 1b (tests/defects/test_corner_flakes.py). The gap closes at ``t_up = t_down``.
 
     Returns
     -------
@@ -112,7 +113,8 @@ def kekule_honeycomb(t_intra: float = 0.3, t_inter: float = 1.0) -> LatticeModel
 
 def hexagon_triangle(t_hexagon: float = 0.3, t_triangle: float = 1.0, radius: float = 0.25) -> LatticeModel:
     """A C6 obstructed atomic limit with its Wannier centres at 2b (a construction of ours; the index values it
-    must give, χ^(6) = (0, −2) and |Q| = e/3, are those of Benalcazar, Li, Hughes 2019 via PHYSICS.md §6).
+    must give, χ^(6) = (0, −2) and |Q| = e/3, are those of Benalcazar, Li, Hughes 2019 via PHYSICS.md §6; the sign,
+    Q = −e/3 with ions at 1a, is measured on a hexagonal flake in tests/defects/test_corner_flakes.py).
 
     Six s sites per cell on a hexagon of radius ``radius`` about the origin at azimuths 30°, 90°, …; each points at a
     2b position ((1/3, 1/3) or (2/3, 2/3) reduced, distance 1/√3), around which three sites of three neighbouring

@@ -15,10 +15,6 @@ def _corner(model, group, filling):
     return ct.classify(model, group=group, filling=filling, invariants=[NAME])[NAME]
 
 
-def _distance_from_zero(q):
-    return min(q % 1.0, 1.0 - q % 1.0)
-
-
 def test_c4_breathing_square_has_corner_charge_a_quarter():
     # Benalcazar, Li, Hughes, PRB 99, 245151 (2019): Q = (e/4)([X1] + 2[M1] + 3[M2]) (from memory, PHYSICS.md §6)
     # with χ = (−1, −1, 0) gives e/4; a finite flake measures 0.25 (PHYSICS.md §6, checked)
@@ -29,17 +25,20 @@ def test_c4_breathing_square_has_corner_charge_a_quarter():
     assert any("polarization" in n for n in res.notes)  # P = (1/2, 1/2) here: cut-dependent, said so
 
 
-@pytest.mark.parametrize("build, group, filling, magnitude, source", [
-    (lambda: breathing_kagome(0.2, 1.0), "3m", 1, 1 / 3, "C3 at 1b: e/3"),
+@pytest.mark.parametrize("build, group, filling, value, source", [
+    (lambda: breathing_kagome(0.2, 1.0), "3m", 1, 2 / 3,
+     "C3, Wannier centre at (2/3, 2/3), triangle about the origin: −e/3 (counting; measured in test_corner_flakes)"),
     (lambda: kekule_honeycomb(0.3, 1.0), "6/mmm", 3, 1 / 2, "C6 at 3c: e/2"),
-    (lambda: hexagon_triangle(0.3, 1.0), "6/mmm", 2, 1 / 3, "C6 at 2b: |Q| = e/3"),
+    (lambda: hexagon_triangle(0.3, 1.0), "6/mmm", 2, 2 / 3,
+     "C6 at 2b: −e/3 (counting (0 − 2)/6; measured on a hexagon in test_corner_flakes)"),
 ])
 def test_c3_and_c6_obstructed_limits_have_the_corner_charges_of_their_wyckoff_positions(build, group, filling,
-                                                                                        magnitude, source):
-    # PHYSICS.md §6 band-representation checks (Benalcazar, Li, Hughes 2019; magnitudes, formulas from memory)
+                                                                                        value, source):
+    # PHYSICS.md §6 band-representation checks (Benalcazar, Li, Hughes 2019; C6 formula from memory), signed:
+    # electrons +1, ions at 1a, mod e
     res = _corner(build(), group, filling)
     assert res.status == "ok", res.message
-    assert _distance_from_zero(res.value) == pytest.approx(magnitude), source
+    assert res.value == pytest.approx(value), source
 
 
 def test_trivial_atomic_limit_has_no_corner_charge():
