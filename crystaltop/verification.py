@@ -13,8 +13,8 @@ What is checked, per record of the report (only records with status "ok" predict
 * ``disclination_charge`` -- per (core, Frank angle) the record lists, a disclination flake with the same ions;
   the charge in discs about the core, converged in the radius, against the predicted value mod e.
 * ``corner_charge`` -- an open flake of whole cells centred on the rotation centre at the origin; the charge of
-  the sector of angle 2π/n about one corner (a quadrant of a square flake), mod e. C3 is not measured (a hexagonal
-  flake has two kinds of corner under C3 only; the record says so).
+  the sector of angle 2π/n about one corner (a quadrant of a square flake), mod e. For C3 the flake is a triangle
+  of whole cells about the origin (a hexagonal flake has two kinds of corner under C3 only).
 
 A prediction and a measurement agree when the numbers of bound states match, or when the charges agree mod e
 within ``tolerance`` and the charge is converged in the disc radius to ``tolerance``. A charge that is not
@@ -279,10 +279,11 @@ def _corner_jobs(model, record, filling, ions, sizes, tolerance):
         build = lambda: flake(model, "parallelogram", size, filling=filling, ions=ions)  # noqa: E731
     elif n == 6:
         build = lambda: flake(model, "polygon", size, filling=filling, ions=ions)  # noqa: E731
+    elif n == 3:  # a triangle about the origin: three equivalent corners under C3 alone
+        build = lambda: flake(model, "triangle", size, filling=filling, ions=ions)  # noqa: E731
     else:
         def build():
-            raise CrystaltopError(f"a C{n} corner is not measured (a hexagonal flake has two kinds of corner under "
-                                  f"C{n} alone)")
+            raise CrystaltopError(f"a C{n} corner is not measured")
     return [_Job("corner_charge", "corner", build,
                  [(f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_corner(q, n, tolerance))])]
 
