@@ -310,14 +310,19 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
         rel = sample.ion_positions - centre
         corner = int(np.argmax(np.linalg.norm(rel, axis=1)))
         angle = np.angle(rel[:, 0] + 1j * rel[:, 1])
-        sector = np.abs(np.angle(np.exp(1j * (angle - angle[corner])))) < np.pi / n - 1e-9
+        turn = np.abs(np.angle(np.exp(1j * (angle - angle[corner]))))
+        at_centre = np.linalg.norm(rel, axis=1) < 1e-9
+        # an ion on a boundary ray is shared by two sectors and one at the centre by all n, so the n sectors tile
+        # the flake (triangles and hexagons of whole cells have ions on their mirror lines)
+        inside = (turn < np.pi / n - 1e-9) & ~at_centre
+        shared = [(inside, 1.0), ((np.abs(turn - np.pi / n) <= 1e-9) & ~at_centre, 0.5), (at_centre, 1.0 / n)]
         levels = sample.gap.centre + sample.gap.width * np.asarray(CORNER_LEVELS)
         charges, densities = [], []
         for level in levels:
             rho = weight[:, e < level].sum(axis=1)
             dens = OccupiedDensity(rho, np.full(len(rho), 1e-12), np.ones(len(rho), dtype=bool), float(level),
                                    "exact diagonalisation (numpy.linalg.eigh)", 0, False)
-            charges.append(region_charge(sample, sector, dens)[0])
+            charges.append(sum(w * region_charge(sample, mask, dens)[0] for mask, w in shared if mask.any()))
             densities.append(dens)
         charges = np.array(charges)
         mid = len(levels) // 2

@@ -179,9 +179,6 @@ def test_verify_defects_measures_a_c3_corner_on_a_triangle():
     assert check.predicted.startswith("+0.6667")
 
 
-@pytest.mark.xfail(strict=True, reason="verification._compare_corner counts only the ions strictly inside the sector; "
-                                       "a triangle of whole cells has ions on the sector's boundary rays, so the "
-                                       "sector is not a third of the flake (−0.188 instead of −1/3 here)")
 def test_verify_defects_confirms_the_c3_corner_charge_of_the_breathing_kagome():
     report = ct.verify_defects(breathing_kagome(0.2, 1.0), "3m", 1, ions=[(ORIGIN, 1.0)],
                                invariants=["corner_charge"], sizes={"flake": 12})
