@@ -270,22 +270,28 @@ def _pi_fraction(m: int, n: int) -> str:
 
 
 def _corner_jobs(model, record, filling, ions, sizes, tolerance):
+    """One flake of whole cells about each C_n centre the record gives a value for (``details["by_centre"]``):
+    a triangle for C3, the Wigner–Seitz square or hexagon for C4 and C6 (each symmetric about its centre)."""
+    from fractions import Fraction
+
     from .defects import flake
 
     n = int(record.details.get("n", 0))
-    q = float(record.value)
+    shape = {3: "triangle", 4: "polygon", 6: "polygon"}.get(n)
+    values = record.details.get("by_centre") or {str(record.details.get("centre", "(0, 0)")): str(record.value)}
+    jobs = []
     size = int(sizes["flake"])
-    if n == 4:
-        build = lambda: flake(model, "parallelogram", size, filling=filling, ions=ions)  # noqa: E731
-    elif n == 6:
-        build = lambda: flake(model, "polygon", size, filling=filling, ions=ions)  # noqa: E731
-    elif n == 3:  # a triangle about the origin: three equivalent corners under C3 alone
-        build = lambda: flake(model, "triangle", size, filling=filling, ions=ions)  # noqa: E731
-    else:
-        def build():
-            raise CrystaltopError(f"a C{n} corner is not measured")
-    return [_Job("corner_charge", "corner", build,
-                 [(f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_corner(q, n, tolerance))])]
+    for where, value in values.items():
+        centre = tuple(float(Fraction(x.strip())) for x in where.strip("()").split(","))
+        q = float(Fraction(value)) if isinstance(value, str) else float(value)
+        if shape is None:
+            def build(n=n):
+                raise CrystaltopError(f"a C{n} corner is not measured")
+        else:
+            build = (lambda centre=centre: flake(model, shape, size, filling=filling, ions=ions, centre=centre))
+        jobs.append(_Job("corner_charge", f"corner, flake about {where}", build,
+                         [(f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_corner(q, n, tolerance))]))
+    return jobs
 
 
 #: Fermi levels tried for a corner charge, as fractions of the bulk gap about its centre (the middle half).

@@ -44,24 +44,29 @@ def test_the_dislocation_charge_of_the_polarized_limit_is_confirmed_on_a_sample(
 
 
 def test_the_corner_charge_of_the_c4_flake_is_confirmed_at_every_fermi_level_in_the_gap(c4_obstructed):
-    """Benalcazar, Li, Hughes (2019): corner charge e/4; measured the same mod e at five Fermi levels."""
-    corner = _checks(c4_obstructed, "corner_charge")["corner"]
-    assert corner.agree is True
-    assert np.allclose(np.asarray(corner.details["charge_at_levels"]) % 1.0, 0.25, atol=1e-6)
+    """Benalcazar, Li, Hughes (2019): corner charge e/4 for a square flake of whole cells about the plaquette
+    centre 1b; about 1a the same counting gives 3/4 = −1/4 (the flakes differ by the polarized edge cells).
+    Measured the same mod e at five Fermi levels."""
+    corners = _checks(c4_obstructed, "corner_charge")
+    expected = {"corner, flake about (1/2, 1/2)": 0.25, "corner, flake about (0, 0)": 0.75}
+    assert set(corners) == set(expected)
+    for case, q in expected.items():
+        assert corners[case].agree is True
+        assert np.allclose(np.asarray(corners[case].details["charge_at_levels"]) % 1.0, q, atol=1e-6)
 
 
 def test_the_report_shows_the_table_in_text_markdown_and_json(c4_obstructed, tmp_path):
     text = str(c4_obstructed)
     assert "predicted / measured / agree" in text
-    assert "3 checks: 3 agree, 0 disagree, 0 undetermined" in text
+    assert "4 checks: 4 agree, 0 disagree, 0 undetermined" in text
     md = c4_obstructed.to_markdown()
     assert "| prediction | case | sample | predicted | measured | agree |" in md
     data = json.loads(c4_obstructed.to_json())
-    assert [c["agree"] for c in data["verification"]] == [True, True, True]
+    assert [c["agree"] for c in data["verification"]] == [True] * 4
     pytest.importorskip("matplotlib")
     written = c4_obstructed.save_figures(tmp_path)
     maps = [k for k in written if k.startswith("verification/")]
-    assert len(maps) == 3  # a charge map per check
+    assert len(maps) == 4  # a charge map per check
     assert all(Path(written[k]).stat().st_size > 0 for k in maps)
 
 
@@ -106,7 +111,7 @@ def test_a_corner_charge_that_depends_on_the_edge_filling_is_undetermined_not_a_
     """The Kekulé obstructed limit on a hexagonal flake of whole cells has an ungapped edge at half filling: the
     sector charge moves with the Fermi level inside the gap, so no corner charge is measured (agree=None)."""
     report = ct.verify_defects(kekule_honeycomb(0.5, 1.0), ions=[((0.0, 0.0), 3.0)], invariants=["corner_charge"])
-    corner = _checks(report, "corner_charge")["corner"]
+    corner = _checks(report, "corner_charge")["corner, flake about (0, 0)"]
     assert corner.agree is None
     assert "depends on the Fermi level" in corner.measured
     assert not report.disagreements
@@ -127,7 +132,7 @@ def test_a_model_without_a_finite_range_real_space_form_is_recorded_as_not_measu
                          representations={op: (lambda k, op=op: base.symmetry_matrix(op, k)) for op in group},
                          time_reversal=base.time_reversal_matrix())
     report = ct.verify_defects(bare, "4", 1, invariants=["corner_charge"])
-    corner = _checks(report, "corner_charge")["corner"]
+    corner = next(iter(_checks(report, "corner_charge").values()))
     assert report["corner_charge"].value == pytest.approx(0.25)
     assert corner.agree is None and corner.measured.startswith("not measured:")
     assert "real-space form" in corner.measured
