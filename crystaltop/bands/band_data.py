@@ -560,6 +560,12 @@ class BandData:
             rows = todo[hit]
             energies[rows], vectors[rows] = self._scattered_e[j[hit]], self._scattered_v[j[hit]]
             todo = todo[~hit]
+        if unknown.size and not todo.size:  # every new point lies on the mesh store: distinct ones by their index
+            flat_new, first, inverse = np.unique(flat[~hit], return_index=True, return_inverse=True)
+            # in the order of their (rounded) coordinates and diagonalised there, as the matching below would do
+            e, v = self._diagonalise(_point_keys(k[unknown[first]]), f"{flat_new.size} points", on_store=flat_new)
+            energies[unknown], vectors[unknown] = e[inverse], v[inverse]
+            return energies, vectors
         if unknown.size:
             todo = np.sort(np.concatenate([todo, unknown]))
         if todo.size:
