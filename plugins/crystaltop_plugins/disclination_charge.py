@@ -5,7 +5,7 @@ disclination of a C_n-symmetric insulator is fixed mod e by the rotation invaria
 Chern number, and state it in units of e/n. Their index formula is not reproduced here (PHYSICS.md §8 marks it
 unsure). What is implemented is derived below from a counting rule and the band representations, and is judged
 by real-space samples (tests/plugins/test_disclination_charge.py: C2, C3, C4 and C6 atomic limits, every core
-type and Frank angle).
+type and Frank angle; tests/plugins/test_disclination_charge_chern.py: C4 Chern insulators, item 4).
 
 1. Counting rule (PHYSICS.md §8; the measurements of tests/defects/test_charges.py agree with it). In an atomic
    limit (occupied Wannier centres, charge +1 each, and the ionic background, as point charges), a disclination
@@ -61,6 +61,38 @@ type and Frank angle).
    attached to this record, with P from `polarization` (Wilson loops) and δN(1a, Ω) from the content. It needs
    integer ionic charges at rotation centres (otherwise P is not defined mod 1 and the check is left out).
 
+4. Chern bands (C ≠ 0), p4 on right-handed axes only. The rule, checked on every C4 Chern sample built for it
+   (tests/plugins/test_disclination_charge_chern.py, docs/defects.md: C = ±1 and −2, with the orbitals' angular
+   momenta turned through all four values, 16- and 24-cell samples, every core and Frank angle):
+
+       δN(c, Ω) ≡ (k/m) (q_c + C S_c)   (mod 1),   S_1a = 1/2,  S_1b = −1/2,  S_2c = 3/2,
+
+   where q_c = N_c − ions at c, and N_c are the per-site contents of an integer (possibly negative) combination of
+   the induced band representations of item 2 whose occupied counts are those of the bands minus C copies of the
+   reference band B: the s band at 1a with its Γ eigenvalues turned from 1 to i (C4) and to −1 (C2), C = +1 (the
+   lower band of `qi_wu_zhang(m=−1)`). Charges come in units of e/2n (a half-integer number of e/n when C is odd).
+   Why, step by step:
+   (a) derived: charges of decoupled stacks add (the seam matrix is block diagonal), and adding bands that are an
+       atomic limit adds the counting rule of item 1. Every integer kernel vector of the band-representation table
+       of p4 binds 0 (tested), so any integer combination gives the same charges.
+   (b) FROM MEMORY, not derived here: for p4 without time reversal (spinless, C4^4 = +1) the occupied rotation
+       eigenvalues and C determine a band structure up to stable equivalence (the symmetry indicator group is Z4,
+       C mod 4, the Fang–Gilbert–Bernevig relation). Then [bands] = [X] + C [B] with X a formal combination of band
+       representations, and δN(bands) = δN(X) + C δN(B).
+   (c) δN(B) = (k/m) S_c. Derived up to e/2: the complex conjugate B̄ (C = −1, Γ eigenvalue −i) has the same
+       disclination density (the sample Hamiltonian is conjugated), and B ⊕ B̄ is the integer combination with
+       N_1a = 1, N_1b = −1, N_2c = 1, so 2 S_c ≡ N_c (mod m): S_1a ∈ {1/2, 5/2}, S_1b ∈ {−1/2, 3/2}, S_2c ∈ {1/2, 3/2}.
+       Measured: S = (1/2, −1/2, 3/2), which makes the Γ-point band inversion from the trivial s band to B change
+       the charge by the same −(Ω/2π)/2 at all three cores (Γ does not see the core's translation), i.e.
+       −ΔC s̄ Ω/2π with s̄ = 1/2 the mean angular momentum of the two states that invert. This is the form of the
+       "discrete shift" term (Ω/2π) S of Zhang, Manjunath, Nambiar, Barkeshli, PRL 129, 275301 (2022) (FROM
+       MEMORY); no term quadratic in Ω was seen.
+   (d) derived, and a consequence of the rule: multiplying the rotation representation by i^j (the same bands,
+       other angular momenta) shifts every charge by −C j k/4 e, as a flux 2πjk/4 threaded through the core
+       would (Středa: C e per flux quantum; the sign is the builders' seam convention, measured).
+   Li, Zhu, Benalcazar, Hughes (2020) give an index formula with a Chern term; it is not used or compared here.
+   Outside p4 with right-handed axes a Chern insulator is still skipped (no reference band was measured there).
+
 Ionic background: option ``ions``. The default, ``"1a"``, puts the whole background of a cell (ν electrons) at
 the origin, the convention of the defect builders called with ``ions=[((0, 0), ν)]``. Also accepted: another
 Wyckoff name ("1b", ...; the background spread equally over its sites), ``"sites"`` (ν/N on each of the N basis
@@ -70,8 +102,8 @@ and sum to ν.
 Domain (otherwise NotApplicable, with the reason):
 - spinless models with C_n^n = +1; `rotation_eigenvalues` reports C_n^n = −1 for π flux, and the spinful
   double-group case is not handled;
-- Chern number 0: a Chern insulator has no Wannier representation, and the Chern term of Li et al. is not
-  implemented, because nothing here has been checked against a real-space Chern sample;
+- Chern number 0, or a Chern insulator of p4 on right-handed axes (item 4); other Chern insulators have no
+  Wannier representation and no measured reference band;
 - occupied rotation eigenvalues that belong to an atomic limit with its Wannier centres at rotation centres:
   fragile or non-Wannierisable bands have no non-negative integer splitting;
 - a gapped model: a gap closing at a high-symmetry momentum makes `rotation_eigenvalues` fail.
@@ -95,6 +127,7 @@ from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, cou
 
 LZBH = "Li, Zhu, Benalcazar, Hughes, PRB 101, 115115 (2020)"
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
+ZMNB = "Zhang, Manjunath, Nambiar, Barkeshli, PRL 129, 275301 (2022)"
 #: largest number of partial assignments the enumeration of Wannier contents may visit
 MAX_NODES = 400_000
 _TOL = 1e-6
@@ -326,6 +359,67 @@ def ions_at(ions, point) -> Fraction:
     return sum((q for p, q in ions if _same_point(p, point)), Fraction(0))
 
 
+# ---------------------------------------------------------------------------------------------- Chern bands
+#: S_c of module docstring item 4 (per unit Chern number, electrons, per site of the orbit), p4 on right-handed axes
+CHERN_SHIFT = {"1a": Fraction(1, 2), "1b": Fraction(-1, 2), "2c": Fraction(3, 2)}
+REFERENCE_BAND = ("C = +1: the s band at 1a with its Γ eigenvalues turned to i (C4) and −1 (C2), the lower band "
+                  "of qi_wu_zhang(m=−1)")
+
+
+def reference_chern_counts(table, columns, rows, rotations) -> np.ndarray:
+    """Occupied counts of the reference band: the column of (1a, λ = 1) with its Γ entries moved to sector 1."""
+    col = table[:, columns.index((0, 0))].copy()
+    gamma = {label for label, _, _, momenta in rotations for m, k in momenta.items()
+             if np.allclose(k, 0.0)}
+    at_gamma = {label: m for label, _, _, momenta in rotations for m, k in momenta.items() if np.allclose(k, 0.0)}
+    if set(at_gamma) != gamma or len(at_gamma) != len(rotations):  # pragma: no cover - Γ is fixed by every rotation
+        raise CrystaltopError("Γ is missing among the momenta of the rotation eigenvalues")
+    for label, m in at_gamma.items():
+        i0, i1 = rows.index((label, m, 0)), rows.index((label, m, 1))
+        col[i0], col[i1] = col[i0] - 1, col[i1] + 1  # eigenvalue 1 → e^{2πi/f}: i for C4, −1 for C2
+    return col
+
+
+def integer_solution(a, b) -> np.ndarray | None:
+    """An integer x with a x = b (exact, Python integers), or None: column-style Hermite reduction of ``a``."""
+    a = [[int(v) for v in row] for row in np.asarray(a)]
+    m, p = len(a), len(a[0])
+    u = [[int(i == j) for j in range(p)] for i in range(p)]
+
+    def combine(j, i, q):  # column j −= q column i, in a and u
+        for r in a:
+            r[j] -= q * r[i]
+        for r in u:
+            r[j] -= q * r[i]
+
+    def swap(i, j):
+        for r in a + u:
+            r[i], r[j] = r[j], r[i]
+
+    pivots, col = [], 0
+    for row in range(m):
+        if col == p:
+            break
+        while any(a[row][j] for j in range(col + 1, p)):
+            j0 = min((j for j in range(col, p) if a[row][j]), key=lambda j: abs(a[row][j]))
+            swap(col, j0)
+            for j in range(col + 1, p):
+                combine(j, col, a[row][j] // a[row][col])
+        if a[row][col]:
+            pivots.append((row, col))
+            col += 1
+    y = [0] * p
+    target = [int(v) for v in np.asarray(b)]
+    for row, c in pivots:
+        rest = target[row] - sum(a[row][j] * y[j] for j in range(c))
+        if rest % a[row][c]:
+            return None
+        y[c] = rest // a[row][c]
+    if any(sum(a[r][j] * y[j] for j in range(p)) != target[r] for r in range(m)):
+        return None
+    return np.array([sum(u[i][j] * y[j] for j in range(p)) for i in range(p)], dtype=int)
+
+
 # ---------------------------------------------------------------------------------------------- the plugin
 class DisclinationCharge(Invariant):
     name = "disclination_charge"
@@ -335,9 +429,6 @@ class DisclinationCharge(Invariant):
 
     def compute(self, context):
         chern = context.result("chern")
-        if int(chern.value) != 0:
-            raise NotApplicable(f"Chern number {chern.value} ≠ 0: no Wannier representation, and the Chern term of "
-                                f"{LZBH} is not implemented (unchecked against a real-space Chern sample)")
         eig = context.result("rotation_eigenvalues")
         powers = eig.details["powers"]
         by_label = {op.label: op for op in context.group.operations}
@@ -349,6 +440,13 @@ class DisclinationCharge(Invariant):
         gen = max(rot, key=lambda op: op.fold)
         n = int(gen.fold)
         w = np.asarray(gen.in_basis(context.lattice), dtype=int)
+        c_number = int(chern.value)
+        if c_number != 0 and (n != 4 or np.linalg.det(np.asarray(context.lattice, dtype=float)) <= 0):
+            raise NotApplicable(f"Chern number {c_number} ≠ 0 with C{n}" + (" on left-handed axes" if n == 4 else "")
+                                + f": no Wannier representation, and the Chern rule of this record (module docstring, "
+                                "item 4) was measured and fixed on right-handed C4 samples only. What C4 samples show "
+                                "(docs/defects.md): charges in units of e/2n, linear in the Frank angle, and a rotation "
+                                "representation multiplied by e^{2πij/n} shifts them by −C·j·Ω/2π")
         rotations = []
         for label in powers:
             op = by_label[label]
@@ -361,6 +459,9 @@ class DisclinationCharge(Invariant):
         ions, ions_text = parse_ions(context.option("ions"), orbits, context.filling, context.model, w)
         table, columns, rows = band_representation_table(orbits, w, n, rotations)
         observed = np.array([eig.details[label]["counts"][m][p] for label, m, p in rows], dtype=int)
+        if c_number != 0:
+            return self._chern_outcome(context, eig, powers, gen, n, w, orbits, ions, ions_text, table, columns, rows,
+                                       rotations, observed, c_number)
         try:
             found = decompositions(table, observed)
         except _TooMany:
@@ -441,6 +542,68 @@ class DisclinationCharge(Invariant):
         return Outcome(value=value, method=f"counting rule on the Wannier content fixed by the occupied rotation "
                                            f"eigenvalues (PHYSICS.md §8; {BLH}; {LZBH})",
                        mesh="high-symmetry momenta", details=details, notes=tuple(notes), cross_check=cross_check)
+
+    # ------------------------------------------------------------------ Chern bands (module docstring, item 4)
+    @staticmethod
+    def _chern_outcome(context, eig, powers, gen, n, w, orbits, ions, ions_text, table, columns, rows, rotations,
+                       observed, c_number):
+        names = [o["name"] for o in orbits]
+        if names != list(CHERN_SHIFT):  # pragma: no cover - p4 always has these three orbits
+            raise NotApplicable(f"rotation centres {names}: the Chern rule is fixed for 1a, 1b, 2c of p4 only")
+        reference = reference_chern_counts(table, columns, rows, rotations)
+        x = integer_solution(table, observed - c_number * reference)
+        if x is None:
+            raise NotApplicable(f"the occupied rotation eigenvalues minus {c_number} reference Chern band(s) are no "
+                                "integer combination of band representations (the Fang–Gilbert–Bernevig relation "
+                                "fails?)")
+        content = [0] * len(orbits)
+        for (o, _), c in zip(columns, x):
+            content[o] += int(c)
+        first = {}
+        for i, o in enumerate(orbits):
+            q = Fraction(content[i]) - ions_at(ions, o["sites"][0])
+            shift = CHERN_SHIFT[o["name"]]
+            cases = {}
+            for k in frank_steps(o["fold"]):
+                frac = _mod1_fraction(Fraction(k, o["fold"]) * (q + c_number * shift))
+                units = frac * n
+                cases[angle_label(k, o["fold"])] = {
+                    "k": k, "fraction": _text(frac), "units": int(units) if units.denominator == 1 else _text(units),
+                    "T": holonomy_translation(w, o["sites"][0], k * (n // o["fold"]))}
+            first[o["name"]] = cases
+        value = {core: {omega: {f"e/{n}": entry["units"], "mod 1": entry["fraction"]} for omega, entry in cases.items()}
+                 for core, cases in first.items()}
+        cores = {o["name"]: {"position": tuple(float(v) for v in o["sites"][0]), "site_symmetry": f"C{o['fold']}",
+                             "sites": [tuple(float(v) for v in x) for x in o["sites"]],
+                             "integer_content_per_site": content[i], "chern_shift_per_site": _text(CHERN_SHIFT[o["name"]]),
+                             "ions_per_site": _text(ions_at(ions, o["sites"][0])),
+                             "frank_angles": {omega: {"radians": 2 * np.pi * e["k"] / o["fold"],
+                                                      "holonomy_translation": e["T"]}
+                                              for omega, e in first[o["name"]].items()}}
+                 for i, o in enumerate(orbits)}
+        per_case = [{"core": cores[name]["position"], "core_name": name, "frank_angle": angle["radians"],
+                     "charge": float(Fraction(first[name][omega]["fraction"])),
+                     "fraction": first[name][omega]["fraction"], f"e/{n}": first[name][omega]["units"],
+                     "holonomy_translation": angle["holonomy_translation"]}
+                    for name in cores for omega, angle in cores[name]["frank_angles"].items()]
+        combination = {f"{orbits[o]['name']} λ={_sector_text(orbits[o]['fold'], s)}": int(c)
+                       for (o, s), c in zip(columns, x) if c}
+        details = {"n": n, "unit": f"e/{n}", "cores": cores, "per_case": per_case, "ions": ions_text,
+                   "ion_background": [(tuple(float(v) for v in p), float(q)) for p, q in ions],
+                   "filling": context.filling, "chern": c_number,
+                   "chern_rule": {"reference_band": REFERENCE_BAND, "shift_per_unit_chern":
+                                  {k: _text(v) for k, v in CHERN_SHIFT.items()},
+                                  "band_representations_of_the_rest": combination},
+                   "rotation_eigenvalue_counts": {label: eig.details[label]["counts"] for label in powers},
+                   "generator": gen.label}
+        notes = [f"Chern rule (module docstring, item 4): δN ≡ (Ω/2π)(q_core + C·S_core) mod 1, S = 1/2, −1/2, 3/2 at "
+                 f"1a, 1b, 2c; q_core from the band representations of the bands minus C reference bands "
+                 f"({REFERENCE_BAND}); the half-integer part was measured on real-space samples",
+                 f"charges in units of e/{n} (mod {n}; halves occur) and as a fraction of e mod 1; electrons count "
+                 "positive", f"ionic background: {ions_text}"]
+        return Outcome(value=value, method=f"band representations and C reference Chern bands, measured shift "
+                                           f"(module docstring, item 4; {LZBH}; {ZMNB} from memory)",
+                       mesh="high-symmetry momenta", details=details, notes=tuple(notes))
 
     # ------------------------------------------------------------------ predictions
     @staticmethod

@@ -18,8 +18,7 @@ import pytest
 import crystaltop as ct
 from crystaltop.defects import bound_charge, disclination
 from crystaltop.errors import NotApplicable
-from crystaltop.examples import (benalcazar_bernevig_hughes, bernevig_hughes_zhang, c4_breathing_square,
-                                 qi_wu_zhang)
+from crystaltop.examples import benalcazar_bernevig_hughes, bernevig_hughes_zhang, c4_breathing_square, haldane
 from crystaltop.examples.crystalline import HEXAGONAL, breathing_kagome, hexagon_triangle
 from crystaltop.examples.obstructed_limits import kekule_honeycomb
 from crystaltop.plugin import Context, high_symmetry_momenta, planar_rotations
@@ -223,10 +222,11 @@ def test_bad_ions_are_refused_with_the_reason(ions, message):
 
 
 # ---------------------------------------------------------------------------------------------- outside the domain
-def test_a_chern_insulator_is_skipped_the_chern_term_is_not_implemented():
-    # Qi–Wu–Zhang at m = 1: C = −1 (PHYSICS.md §2)
-    res = _predict(qi_wu_zhang(m=1.0), "4/m", 1)
-    assert res.status == "skipped" and "Chern number -1" in res.message and "not implemented" in res.message
+def test_a_chern_insulator_outside_p4_is_skipped_with_the_reason():
+    # Haldane, PRL 61, 2015 (1988): C = −1 at φ = π/2, M = 0 (PHYSICS.md §2); the C4 Chern rule is
+    # tests/plugins/test_disclination_charge_chern.py
+    res = _predict(haldane(), "6/m", 1)
+    assert res.status == "skipped" and "Chern number -1" in res.message and "C4 samples only" in res.message
 
 
 def test_pi_flux_with_c4_to_the_fourth_minus_one_is_skipped():
