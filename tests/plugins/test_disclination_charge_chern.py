@@ -214,3 +214,10 @@ def test_a_chern_insulator_outside_p4_is_skipped_and_the_message_says_what_the_c
     assert res.status == "skipped" and res.value is None
     assert "Chern number -1" in res.message and "C4 samples only" in res.message
     assert "e/2n" in res.message and "−C·j·Ω/2π" in res.message and "docs/defects.md" in res.message
+
+
+def test_verify_defects_confirms_every_case_the_chern_record_lists():
+    """The record's per_case entries (seven for p4) are measured by verify_defects with the record's background."""
+    report = ct.verify_defects(_model(1.0), "4/m", 1, invariants=[NAME], sizes={"disclination": 16})
+    checks = [c for c in report.verification if c.prediction == NAME]
+    assert len(checks) == 7 and all(c.agree for c in checks), [(c.case, c.measured) for c in checks]
