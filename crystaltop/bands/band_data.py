@@ -151,8 +151,8 @@ class _MeshStore:
 
     def record(self, k: np.ndarray, energies: np.ndarray, vectors: np.ndarray, flat=None) -> None:
         """Keep the eigensystems of the points ``k`` ``(m, dim)`` that lie on the mesh (``flat``: their flat
-        indices, when every point is on it and they are known) and are not known yet: what was handed out never
-        changes."""
+        indices, when the caller knows that every point is on it) and are not known yet: what was handed out
+        never changes."""
         if flat is None:
             rows, flat = self.point_index(k)
         else:
@@ -313,8 +313,9 @@ class BandData:
             kk = k.reshape(-1, k.shape[-1])[bad]
             raise NonHermitianError(f"H(k) is not Hermitian at k={format_k(kk)}: |H - H†| = {dev_all[bad]:.2e}")
 
-    #: largest mesh store allocated (bytes of eigenvectors; the pages are touched only where points are known)
-    STORE_BYTES = 1 << 29
+    #: largest mesh store allocated (bytes of eigenvectors; the pages are touched only where points are known);
+    #: beyond it, or if the allocation is refused, grids and points are matched against each other as before
+    STORE_BYTES = 1 << 28
 
     def _store_for(self, grid: Grid) -> _MeshStore | None:
         """The mesh store, made on the first grid with a closed axis: the mesh of its longest closed axis."""
@@ -323,7 +324,10 @@ class BandData:
             n = max(m for m, p in zip(grid.shape, grid.periodic) if p)
             states = int(self.model.n_states)
             if n ** grid.dim * states * states * 16 <= self.STORE_BYTES:
-                store = _MeshStore((n,) * grid.dim, states)
+                try:
+                    store = _MeshStore((n,) * grid.dim, states)
+                except MemoryError:  # the store is an accelerator, never a requirement
+                    return None
                 for cached in self._maximal:  # what is known already (grids and points asked for before)
                     e, v = self._grids[cached]
                     store.record(cached.points.reshape(-1, grid.dim), e.reshape(-1, states),

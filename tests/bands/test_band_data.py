@@ -111,3 +111,13 @@ def test_a_grid_without_a_closed_axis_asked_first_is_not_diagonalised_again_by_a
     bands.eigensystem(Grid(((0.0, 0.5), (0.0, 0.5)), (False, False)))  # the four TRIMs
     bands.eigensystem(uniform_mesh((8, 8)))
     assert bands.stats.k_points == 4 + 60
+
+
+def test_without_a_mesh_store_grids_and_points_are_still_found_and_not_diagonalised_twice():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    bands.STORE_BYTES = 0  # no store: every lookup matches grids and points against each other
+    bands.eigensystem(plane(2, 0, 0.0, (8,)))
+    e_pts, _ = bands.at([[0.25, 0.5], [0.5, 0.125], [0.3, 0.3]])
+    e_full, _ = bands.eigensystem(uniform_mesh((8, 8)))
+    assert bands._store is None and bands.stats.k_points == 8 + 3 + (64 - 8 - 2)
+    assert np.array_equal(e_full[2, 4], e_pts[0])
