@@ -63,7 +63,8 @@ type and Frank angle; tests/plugins/test_disclination_charge_chern.py: C4 Chern 
 
 4. Chern bands (C ≠ 0), p4 on right-handed axes only. The rule, checked on every C4 Chern sample built for it
    (tests/plugins/test_disclination_charge_chern.py, docs/defects.md: C = ±1 and −2, with the orbitals' angular
-   momenta turned through all four values, 16- and 24-cell samples, every core and Frank angle):
+   momenta turned through all four values, d-wave form factors, pairs of such bands coupled by random C4 bonds,
+   16- and 24-cell samples, every core and Frank angle):
 
        δN(c, Ω) ≡ (k/m) (q_c + C S_c)   (mod 1),   S_1a = 1/2,  S_1b = −1/2,  S_2c = 3/2,
 
