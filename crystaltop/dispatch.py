@@ -141,6 +141,40 @@ def applicable_invariants(group, dim: int, time_reversal: bool = False, *, spinf
             if why is None]
 
 
+def _plan(invariants, *, model, group, filling, time_reversal, bands, elements, spinful, common, options) -> None:
+    """Ask every invariant that applies, before any runs, for the grids it will need (the optional
+    ``planned_grids(context)``), and have the band data diagonalise the union of their new points in one batch.
+
+    A plan only saves time: an invariant whose plan raises is left out of it, and a batch that fails (H(k) refused
+    at some point) is dropped, so that the invariants meet and record the same error themselves when they ask.
+    """
+    wanted, who, applies = [], [], set()
+    for name, inv in invariants.items():
+        if inv.requires.why_not(elements=elements, dim=model.dim, time_reversal=time_reversal, spinful=spinful):
+            continue
+        if any(used not in applies for used in inv.requires.uses):
+            continue
+        applies.add(name)
+        planned = getattr(inv, "planned_grids", None)
+        if planned is None:
+            continue
+        ctx = Context(model=model, group=group, filling=filling, time_reversal=time_reversal, bands=bands,
+                      results={}, options={**common, **options.get(name, {})}, allowed=())
+        try:
+            grids = list(planned(ctx) or ())
+        except Exception:  # planning is advisory: the invariant asks for what it needs when it runs
+            continue
+        if grids:
+            wanted.extend(grids)
+            who.append(name)
+    if not wanted:
+        return
+    try:
+        bands.prefetch(wanted, what="planned by " + ", ".join(who))
+    except Exception:  # met again, and recorded, by the invariant that asks for the point concerned
+        pass
+
+
 def run_invariants(*, model, group, filling, time_reversal, bands, registry=None, only=None,
                    options=None) -> dict:
     """Run every applicable invariant in dependency order, each isolated; returns name -> Result."""
@@ -164,6 +198,8 @@ def run_invariants(*, model, group, filling, time_reversal, bands, registry=None
     options = dict(options or {})
     common = {k: v for k, v in options.items() if not isinstance(v, dict)}
     results: dict[str, Result] = {}
+    _plan(invariants, model=model, group=group, filling=filling, time_reversal=time_reversal, bands=bands,
+          elements=elements, spinful=spinful, common=common, options=options)
     for name, inv in invariants.items():
         title = getattr(inv, "title", "") or name
         reason = inv.requires.why_not(elements=elements, dim=model.dim, time_reversal=time_reversal, spinful=spinful)

@@ -17,6 +17,10 @@ Rules of an invariant (each backed by a check in :mod:`crystaltop.testing`):
 4. The value is gauge-, basis- and origin-safe: unchanged under a unitary change of the orbital basis and
    under k-dependent phases of the Bloch states.
 5. The value and ``details`` are plain data (numbers, strings, tuples, lists, dicts, numpy arrays).
+6. Optionally, ``planned_grids(context)`` names the grids (and arrays of k-points) that ``compute`` will ask
+   ``context.bands`` for on its first pass. It is called before any invariant runs; the dispatcher has the new
+   points of every plan diagonalised in one batch. A plan never changes a result, only when points are
+   diagonalised: ``compute`` still asks for (and checks the gap of) everything it uses.
 """
 
 from __future__ import annotations
@@ -191,6 +195,20 @@ class Invariant:
 
     def compute(self, context: "Context") -> Outcome:  # pragma: no cover - abstract
         raise NotImplementedError
+
+    def planned_grids(self, context: "Context") -> Iterable:
+        """The grids (:class:`Grid`) and arrays of reduced k-points ``(m, dim)`` that :meth:`compute` will ask
+        ``context.bands`` for on its first pass (before any refinement). Optional.
+
+        Called by the dispatcher once per report, before any invariant runs, with the same context as
+        ``compute`` except that no results of other invariants are there yet (``context.result`` must not be
+        called). The new points of every invariant's plan are diagonalised together, in one batch, so that no
+        mesh is diagonalised in pieces. Name only what ``compute`` is sure to use on models where it applies: a
+        point planned but never used is a wasted diagonalisation, never a wrong result. Gaps are not checked
+        here; ``compute`` checks them when it asks, as it would without a plan. An exception raised here only
+        leaves this invariant out of the plan. The default plans nothing.
+        """
+        return ()
 
 
 class Context:

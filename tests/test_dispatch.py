@@ -113,3 +113,43 @@ def test_a_misspelt_hook_implementation_fails_loudly():
     reg = InvariantRegistry(autoload=False)
     with pytest.raises(Exception, match="unknown hook"):
         reg.register(plugin, name="typo")
+
+
+def _planning(name, planned, compute):
+    cls = type(name.title(), (Invariant,), {"name": name, "title": name, "requires": Requirements(),
+                                            "planned_grids": lambda self, ctx: planned(ctx),
+                                            "compute": lambda self, ctx: compute(ctx)})
+    return cls()
+
+
+def test_the_grids_that_invariants_plan_are_diagonalised_in_one_batch_before_any_of_them_runs():
+    from crystaltop.kspace import plane, uniform_mesh
+
+    def whole(ctx):
+        return Outcome(value=float(ctx.bands.occupied(uniform_mesh((8, 8))).size), method="m")
+
+    def line(ctx):
+        return Outcome(value=ctx.bands.check_gap(plane(2, 0, 0.0, (8,))), method="m")
+
+    reg = _registry(_planning("a", lambda ctx: [plane(2, 0, 0.0, (8,))], line),
+                    _planning("b", lambda ctx: [uniform_mesh((8, 8)), np.array([[0.5, 0.5]])], whole))
+    model = TwoBandPlane(1.0)
+    bands = BandData(model, 1)
+    res = run_invariants(model=model, group=_Group(()), filling=1, time_reversal=False, bands=bands, registry=reg)
+    assert res["a"].status == "ok" and res["b"].status == "ok"
+    assert bands.stats.batches == [("planned by a, b (64 points)", 64)]
+    assert res["a"].smallest_gap is not None  # the gap is still checked when the invariant asks
+
+
+def test_a_plan_that_raises_is_left_out_and_the_invariant_still_runs():
+    from crystaltop.kspace import uniform_mesh
+
+    def broken(ctx):
+        raise RuntimeError("no plan")
+
+    reg = _registry(_planning("a", broken, lambda ctx: Outcome(
+        value=ctx.bands.check_gap(uniform_mesh((4, 4))), method="m")))
+    model = TwoBandPlane(1.0)
+    bands = BandData(model, 1)
+    res = run_invariants(model=model, group=_Group(()), filling=1, time_reversal=False, bands=bands, registry=reg)
+    assert res["a"].status == "ok" and bands.stats.batches == [("4x4", 16)]

@@ -157,6 +157,8 @@ class _MeshStore:
             rows, flat = self.point_index(k)
         else:
             rows = None
+            if flat.size == self._known.size and energies.shape[0] == flat.size and self.adopt(energies, vectors, flat):
+                return
         new = ~self._known[flat]
         if not new.all():
             rows = np.flatnonzero(new) if rows is None else rows[new]
@@ -165,6 +167,23 @@ class _MeshStore:
             self._e[flat] = energies if rows is None else energies[rows]
             self._v[flat] = vectors if rows is None else vectors[rows]
             self._known[flat] = True
+
+    def adopt(self, energies: np.ndarray, vectors: np.ndarray, flat: np.ndarray) -> bool:
+        """Take the eigensystems of the whole mesh, in flat order, as the store's own arrays (no copy), when no
+        point is known yet; False (nothing done) otherwise."""
+        n = self._e.shape[1]
+        if self._known.any() or not np.array_equal(flat, np.arange(flat.size)) \
+                or not (energies.flags.c_contiguous and vectors.flags.c_contiguous):
+            return False
+        self._e, self._v = energies.reshape(-1, n), vectors.reshape(-1, n, n)
+        self.energies, self.vectors = self._e.reshape(self.shape + (n,)), self._v.reshape(self.shape + (n, n))
+        self._known[:] = True
+        return True
+
+    def coordinates(self, flat: np.ndarray) -> np.ndarray:
+        """The reduced momenta ``j / N`` of the mesh points with the given flat indices, ``(m, dim)``."""
+        j = np.stack(np.unravel_index(flat, self.shape), axis=-1)
+        return j / self._scale
 
     def holds(self, k: np.ndarray) -> np.ndarray:
         """Whether each of the points ``k`` ``(m, dim)`` lies on the mesh."""
@@ -401,6 +420,58 @@ class BandData:
             first.sort()
             self._diagonalise(points[first], f"{', '.join(what)} ({first.size} new points)", on_store=flat[first])
         return [self.eigensystem(g) for g in grids]
+
+    def prefetch(self, wanted, what: str = "planned") -> int:
+        """Diagonalise in one batch every point of ``wanted`` that is not known yet, and return how many.
+
+        ``wanted`` holds grids and arrays of reduced momenta ``(m, dim)``: what the invariants of a report said,
+        before running, they will ask for (``Invariant.planned_grids``). Nothing is checked here but H(k) itself:
+        the gap of a grid is checked when an invariant asks for it, as without a plan. Points on the mesh store
+        are diagonalised at the mesh's coordinates ``j / N``, in the order of the mesh; the whole mesh, when it is
+        all new, becomes the store's arrays. Grids and points off the mesh store are diagonalised as
+        :meth:`eigensystems` and :meth:`at` would.
+        """
+        dim = int(self.model.dim)
+        grids = [w for w in wanted if isinstance(w, Grid)]
+        points = [np.asarray(w, dtype=float).reshape(-1, dim) for w in wanted if not isinstance(w, Grid)]
+        for g in grids:
+            if g.dim != dim:
+                raise ShapeError(f"a {g.dim}D grid was asked of a {dim}D model")
+        before = self.stats.k_points
+        store = self._store
+        for g in grids:
+            if store is not None:
+                break
+            store = self._store_for(g)
+        off_grids, off_points, flats = [], [], []
+        if store is None:
+            off_grids, off_points = grids, points
+        else:
+            for g in grids:
+                idx = store.grid_index(g)
+                if idx is None:
+                    off_grids.append(g)
+                else:
+                    flats.append(idx.reshape(-1))
+            for p in points:
+                rows, flat = store.point_index(p)
+                flats.append(flat)
+                if rows.size < p.shape[0]:
+                    off = np.ones(p.shape[0], dtype=bool)
+                    off[rows] = False
+                    off_points.append(p[off])
+        if flats:
+            wanted_mask = np.zeros(store._known.size, dtype=bool)  # the union, in the mesh's order
+            for f in flats:
+                wanted_mask[f] = True
+            flat = np.flatnonzero(wanted_mask & ~store._known)
+            if flat.size:
+                self._diagonalise(store.coordinates(flat), f"{what} ({flat.size} points)", on_store=flat)
+        if off_grids:
+            self.eigensystems(off_grids)
+        if off_points:
+            self.at(np.concatenate(off_points))
+        return self.stats.k_points - before
 
     def _eigensystems_apart(self, grids) -> list[tuple[np.ndarray, np.ndarray]]:
         """:meth:`eigensystems` for grids off the mesh store (matched against the cached grids)."""

@@ -62,6 +62,12 @@ class ChernNumber(Invariant):
             worst = 1.0
         return int(round(total)), abs(total - round(total)), worst
 
+    def planned_grids(self, context):
+        n = int(context.option("mesh", 48 if context.dim == 2 else 24))
+        if context.dim == 2:
+            return [uniform_mesh((n, n))]
+        return [plane(3, i, 0.0, (n, n)) for i in range(3)]
+
     def compute(self, context):
         bands, dim = context.bands, context.dim
         n = int(context.option("mesh", 48 if dim == 2 else 24))

@@ -98,6 +98,16 @@ class Polarization(Invariant):
     title = "Polarization (Wannier-centre sum)"
     requires = Requirements(dims={1, 2, 3}, optional_uses=("chern",))
 
+    def planned_grids(self, context):
+        # the mesh is used only where the Chern numbers vanish: planned where time reversal (or one dimension)
+        # makes them vanish, not where that is known only once chern has run
+        dim = context.dim
+        if dim >= 2 and not context.time_reversal:
+            return ()
+        n = int(context.option("mesh", {1: 96, 2: 48, 3: 24}[dim]))
+        n += n % 2
+        return [uniform_mesh((n,) * dim)]  # the half mesh is a sub-grid of it
+
     def compute(self, context):
         dim, bands = context.dim, context.bands
         if dim >= 2:

@@ -231,6 +231,12 @@ class Z2Index(Invariant):
     title = "Z2 index (time reversal, T² = −1)"
     requires = Requirements(dims={2, 3}, time_reversal=True, spinful=True)
 
+    def planned_grids(self, context):
+        n = int(context.option("mesh", 48 if context.dim == 2 else 24))
+        n += n % 2
+        pump = np.arange(n // 2 + 1) / n
+        return [plane_grid(context.dim, spec, pump, n) for spec in invariant_planes(context.dim)]
+
     def compute(self, context):
         dim, bands = context.dim, context.bands
         n = int(context.option("mesh", 48 if dim == 2 else 24))

@@ -121,3 +121,23 @@ def test_without_a_mesh_store_grids_and_points_are_still_found_and_not_diagonali
     e_full, _ = bands.eigensystem(uniform_mesh((8, 8)))
     assert bands._store is None and bands.stats.k_points == 8 + 3 + (64 - 8 - 2)
     assert np.array_equal(e_full[2, 4], e_pts[0])
+
+
+def test_prefetched_grids_and_points_are_diagonalised_once_and_give_the_same_eigensystems():
+    bands = BandData(TwoBandPlane(1.0), filling=1)
+    grids = [plane(2, 0, 0.0, (8,)), uniform_mesh((8, 8)), uniform_mesh((4, 4))]
+    assert bands.prefetch(grids + [np.array([[0.25, 0.5], [0.3, 0.3]])]) == 64 + 1  # (0.3, 0.3) is off the mesh
+    assert bands.prefetch(grids) == 0
+    ref = BandData(TwoBandPlane(1.0), filling=1)
+    for g in grids:
+        assert np.allclose(bands.eigensystem(g)[0], ref.eigensystem(g)[0])
+    assert np.allclose(bands.at([[0.3, 0.3]])[0], ref.at([[0.3, 0.3]])[0])
+    assert bands.stats.k_points == 65
+
+
+def test_a_prefetch_does_not_check_the_gap_but_a_later_request_does():
+    # Qi–Wu–Zhang (Phys. Rev. B 74, 085308 (2006)): at m = 2 the gap closes at M = (1/2, 1/2).
+    bands = BandData(TwoBandPlane(2.0), filling=1)
+    assert bands.prefetch([uniform_mesh((8, 8))]) == 64 and bands.gap_log == []
+    with pytest.raises(GapClosedError, match=r"k=\(0\.500, 0\.500\)"):
+        bands.occupied(uniform_mesh((8, 8)))
