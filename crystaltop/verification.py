@@ -4,17 +4,20 @@ set each prediction beside its measurement.
 What is checked, per record of the report (only records with status "ok" predict anything):
 
 * ``dislocation_response`` in 2D -- per Burgers vector ``b``, a periodic supercell with a dislocation dipole ``±b``
-  (no open edge, so the helical edge states of a Z2 insulator cannot pass for bound states). The core carrying
-  ``+b`` is measured: the Kramers pair (states in the middle half of the gap with more than half their weight
-  within ``core_radius`` of it) and the bound charge mod e.
+  (no open edge, so the helical edge states of a Z2 insulator cannot pass for bound states): the in-gap states
+  bound to the two cores (middle half of the gap, more than half their weight within 4 cells of a core; the
+  partners at the two cores may hybridise, so they are counted together) and the charge bound to the ``+b``
+  core mod e.
 * ``dislocation_response`` in 3D -- per Burgers vector ``B``, a screw dislocation line along ``B`` (its primitive
   part), a dipole of lines in a periodic box, ``length`` cells along the line (4: k = 0 and π on the mesh, where a
   helical pair crosses): modes on each line, or none.
-* ``disclination_charge`` -- per (core, Frank angle) the record lists, a disclination flake with the same ions;
-  the charge in discs about the core, converged in the radius, against the predicted value mod e.
-* ``corner_charge`` -- an open flake of whole cells centred on the rotation centre at the origin; the charge of
-  the sector of angle 2π/n about one corner (a quadrant of a square flake), mod e. For C3 the flake is a triangle
-  of whole cells about the origin (a hexagonal flake has two kinds of corner under C3 only).
+* ``disclination_charge`` -- per (core, Frank angle) the record lists, a disclination flake with the same ions
+  (the record's own background when none is given); the charge in discs about the core, converged in the
+  radius, against the predicted value mod e.
+* ``corner_charge`` -- one open flake of whole cells about each C_n centre the record values
+  (``details["by_centre"]``): a triangle for C3, the Wigner–Seitz square or hexagon for C4 and C6. The charge of
+  the sector of angle 2π/n about one corner (ions on its boundary rays counted ½, at the centre 1/n), at five
+  Fermi levels in the middle half of the gap: defined only if they agree mod e.
 
 A prediction and a measurement agree when the numbers of bound states match, or when the charges agree mod e
 within ``tolerance`` and the charge is converged in the disc radius to ``tolerance``. A charge that is not
