@@ -297,6 +297,19 @@ def _corner_jobs(model, record, filling, ions, sizes, tolerance):
     return jobs
 
 
+def _symmetric_about(sample, centre, n: int, tol: float = 1e-6) -> bool:
+    """Whether the sample's states and ions map onto themselves under the rotation by 2π/n about ``centre``."""
+    turn = 2.0 * np.pi / n
+    rot = np.array([[np.cos(turn), -np.sin(turn)], [np.sin(turn), np.cos(turn)]])
+
+    def same(points):
+        rel = np.asarray(points, dtype=float)[:, :2] - centre[:2]
+        key = lambda a: a[np.lexsort(np.round(a / tol).T[::-1])]  # noqa: E731
+        return np.allclose(key(rel @ rot.T), key(rel), atol=10 * tol)
+
+    return same(sample.ion_positions) and same(sample.positions)
+
+
 #: Fermi levels tried for a corner charge, as fractions of the bulk gap about its centre (the middle half).
 CORNER_LEVELS = (-0.25, -0.125, 0.0, 0.125, 0.25)
 
@@ -312,6 +325,10 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
         if sample.n_states > 6000:
             raise CrystaltopError(f"the flake has {sample.n_states} states, too many for the dense check of the "
                                   "corner charge at several Fermi levels (at most 6000): give a smaller sizes['flake']")
+        if not _symmetric_about(sample, sample.ion_positions.mean(axis=0), n):
+            raise CrystaltopError(f"the flake of whole cells is not C{n}-symmetric about its centre (the cells are "
+                                  "chosen by the mean position of their orbitals, which this model's cell does not "
+                                  "hold fixed), so its corner sectors are not equivalent")
         dense = sample.hamiltonian.toarray()
         e, v = np.linalg.eigh(dense.real if np.abs(dense.imag).max(initial=0.0) == 0.0 else dense)
         weight = np.abs(v) ** 2

@@ -58,15 +58,17 @@ def test_the_corner_charge_of_the_c4_flake_is_confirmed_at_every_fermi_level_in_
 def test_the_report_shows_the_table_in_text_markdown_and_json(c4_obstructed, tmp_path):
     text = str(c4_obstructed)
     assert "predicted / measured / agree" in text
-    assert "4 checks: 4 agree, 0 disagree, 0 undetermined" in text
+    # 2 dislocations, 2 corner flakes, and the 7 disclination cases corner_charge's cross-check brought in
+    assert len(c4_obstructed.verification) == 11
+    assert "11 checks: 11 agree, 0 disagree, 0 undetermined" in text
     md = c4_obstructed.to_markdown()
     assert "| prediction | case | sample | predicted | measured | agree |" in md
     data = json.loads(c4_obstructed.to_json())
-    assert [c["agree"] for c in data["verification"]] == [True] * 4
+    assert [c["agree"] for c in data["verification"]] == [True] * 11
     pytest.importorskip("matplotlib")
     written = c4_obstructed.save_figures(tmp_path)
     maps = [k for k in written if k.startswith("verification/")]
-    assert len(maps) == 4  # a charge map per check
+    assert len(maps) == 11  # a charge map per check
     assert all(Path(written[k]).stat().st_size > 0 for k in maps)
 
 

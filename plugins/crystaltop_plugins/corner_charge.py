@@ -30,6 +30,15 @@ whole cells); about the origin it is (e/4)(3[X1] + 2[M1] + 3[M2]) (derived here)
 for the flake centred at ``details["centre"]`` — the origin for C3 and C6, the plaquette centre for C4 — and
 ``details["by_centre"]`` lists every C_n centre.
 
+Second method: the Wannier content. The same counting says that a flake centred at w has the charge q_w/n per
+corner sector, q_w the Wannier centres minus ions per cell at w; that is the charge the `disclination_charge`
+plugin predicts at a disclination of Frank angle +2π/n about w (its counting rule δN ≡ (Ω/2π) q_w, with the
+Wannier content read off the band representations). With time reversal it is shown as the cross-check of every
+centre; without time reversal, where the C4 and C6 formulas are not established (the counting gives other
+values, e.g. 1/2 instead of 1/4 for a single p₊ orbital at 1b), the value is taken from the Wannier content, and
+the formula's value is only recorded. Without that content (disclination_charge not applicable) a model without
+time reversal gets no C4 or C6 corner charge.
+
 Conditions: the Chern number vanishes (`chern`); C_n^n = +1 (the spinless formula; the Benalcazar–Bernevig–Hughes
 quadrupole, with C4^4 = −1, is outside it — its corner charge e/2 is measured on a finite flake by the defects
 layer).
@@ -42,7 +51,7 @@ from fractions import Fraction
 import numpy as np
 
 from crystaltop.errors import NotApplicable
-from crystaltop.plugin import (Invariant, Outcome, Requirements, high_symmetry_momenta, hookimpl,
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, high_symmetry_momenta, hookimpl,
                                planar_rotations)
 
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
@@ -129,11 +138,32 @@ def _why(context, name):
     return f"{name} {rec.status}: {rec.message}" if rec is not None else f"{name} is not installed"
 
 
+def wannier_content_values(record, n: int, filling: int, by_centre) -> dict | None:
+    """Per C_n centre of ``by_centre`` (keys like "(1/2, 1/2)"), the charge q_w/n mod 1 that the Wannier content
+    gives: the ``disclination_charge`` prediction at Ω = +2π/n about w. None if that record is missing, or its
+    ionic background is not the one the formulas assume (the whole filling at 1a)."""
+    if record is None or record.details.get("n") != n:
+        return None
+    background = [(tuple(float(x) for x in p), float(c)) for p, c in record.details.get("ion_background", ())]
+    if background != [((0.0, 0.0), float(filling))]:
+        return None
+    out = {}
+    for w in by_centre:
+        point = np.array([float(Fraction(x.strip())) for x in w.strip("()").split(",")])
+        found = [c for c in record.details.get("per_case", ())
+                 if abs(float(c["frank_angle"]) - 2 * np.pi / n) < 1e-9
+                 and np.abs((np.asarray(c["core"], dtype=float) - point + 0.5) % 1.0 - 0.5).max() < 1e-9]
+        if not found:
+            return None
+        out[w] = Fraction(found[0]["fraction"])
+    return out
+
+
 class CornerCharge(Invariant):
     name = "corner_charge"
     title = "Corner charge and filling anomaly (from rotation indices)"
     requires = Requirements(dims={2}, any_elements={"C3", "C4", "C6"}, spinful=False,
-                            optional_uses=("chern", "rotation_indices", "polarization"))
+                            optional_uses=("chern", "rotation_indices", "polarization", "disclination_charge"))
 
     def compute(self, context):
         # a gapless model fails here, naming the momentum, before anything else is read
@@ -159,8 +189,26 @@ class CornerCharge(Invariant):
         centre = next(w for w in by_centre if w != origin) if n == 4 else origin  # where each formula's flake sits
         formula = FORMULAS_NO_TR[3] if n == 3 and not context.time_reversal else FORMULAS[n]
         notes = [f"{formula} ({SOURCES[n]})", "charge in units of e, electrons counted positive, ions at 1a, mod e"]
+        content = wannier_content_values(context.result("disclination_charge"), n, context.filling, by_centre)
+        method = f"rotation indices χ^({n}) ({BLH})"
+        cross_check = None
+        formula_values = None
         if not context.time_reversal and n != 3:
-            notes.append("the formula is derived with time reversal; here it is applied to a model without it (unverified)")
+            if content is None:
+                raise NotApplicable(f"without time reversal the C{n} corner-charge formula is not established, and the "
+                                    f"Wannier content that would give the value is unknown "
+                                    f"({_why(context, 'disclination_charge')})")
+            formula_values = {w: _text(v) for w, v in by_centre.items()}
+            by_centre = content
+            q = by_centre[centre]
+            method = f"Wannier content of the occupied bands, q_w/{n} per corner sector (disclination_charge)"
+            notes.append(f"without time reversal the formula is not used (its values {formula_values} are recorded); "
+                         "the value counts the Wannier centres and ions at the flake's centre")
+        elif content is not None:
+            agree = all(content[w] == v for w, v in by_centre.items())
+            shown = {w: _text(v) for w, v in content.items()}
+            cross_check = CrossCheck(f"Wannier content, q_w/{n} per corner sector (disclination_charge at Ω = +2π/{n})",
+                                     shown[centre], agree, f"every centre: {shown}")
         if len(set(by_centre.values())) > 1:
             pol = context.result("polarization")
             shown = f" {tuple(pol.value)}" if pol is not None else ""
@@ -171,10 +219,11 @@ class CornerCharge(Invariant):
         eta = (n * q.numerator // q.denominator) % n if (n * q).denominator == 1 else None
         details = {"n": n, "indices": tuple(chi), "fraction": _text(q), "filling_anomaly": eta, "formula": formula,
                    "centre": centre, "by_centre": {w: _text(v) for w, v in by_centre.items()},
+                   "formula_by_centre": formula_values,
                    "status": ("derived (counting), checked on triangular flakes" if n == 3
                               else "formula from memory (PHYSICS.md §6)")}
-        return Outcome(value=float(q), method=f"rotation indices χ^({n}) ({BLH})", mesh="high-symmetry momenta",
-                       details=details, notes=tuple(notes))
+        return Outcome(value=float(q), method=method, mesh="high-symmetry momenta", details=details,
+                       notes=tuple(notes), cross_check=cross_check)
 
 
 @hookimpl

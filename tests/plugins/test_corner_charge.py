@@ -61,3 +61,40 @@ def test_bbh_quadrupole_corner_charge_is_left_to_the_finite_flake():
 def test_a_gapless_model_fails_naming_the_gap_before_anything_else():
     res = _corner(c4_breathing_square(gamma=1.0), "4/mmm", 1)
     assert res.status == "failed" and "gap" in res.message and "k=" in res.message
+
+
+# ---------------------------------------------------------------------------------------------- second method
+@pytest.mark.parametrize("build, group, filling, by_centre", [
+    (lambda: c4_breathing_square(gamma=0.3), "4", 1, {"(0, 0)": "3/4", "(1/2, 1/2)": "1/4"}),
+    (lambda: breathing_kagome(0.2, 1.0), "3m", 1, {"(0, 0)": "2/3", "(1/3, 1/3)": "0", "(2/3, 2/3)": "1/3"}),
+    (lambda: kekule_honeycomb(0.5, 1.0), None, None, {"(0, 0)": "1/2"}),
+], ids=["C4 SSH", "breathing kagome", "Kekulé"])
+def test_the_index_formula_is_cross_checked_by_the_wannier_content_at_every_centre(build, group, filling, by_centre):
+    """Common practice (PHYSICS.md §8 counting): a flake of whole cells about w holds q_w/n per corner sector, the
+    charge disclination_charge gives at Ω = +2π/n about w. It must agree with the formula of Benalcazar, Li,
+    Hughes, PRB 99, 245151 (2019) (from memory) at every centre; the values are the flake measurements of
+    tests/defects/test_corner_flakes.py."""
+    record = ct.classify(build(), group, filling, invariants=["corner_charge"])["corner_charge"]
+    assert record.ok
+    (check,) = record.cross_checks
+    assert check.agree and "Wannier content" in check.method
+    assert record.details["by_centre"] == by_centre
+
+
+def test_without_time_reversal_the_value_comes_from_the_wannier_content_not_the_formula():
+    """The C4 formula is not established without time reversal: the value is q_w/4 from the content (1/4 about
+    the plaquette centre for the C4 SSH limit, as measured on a flake), the formula's values only recorded."""
+    record = ct.classify(c4_breathing_square(gamma=0.3), "4", 1, time_reversal=False,
+                         invariants=["corner_charge"])["corner_charge"]
+    assert record.ok and record.value == pytest.approx(0.25)
+    assert record.method.startswith("Wannier content")
+    assert record.details["formula_by_centre"] == {"(0, 0)": "3/4", "(1/2, 1/2)": "1/4"}
+
+
+def test_without_time_reversal_and_without_the_wannier_content_no_c4_value_is_given():
+    """With the disclination prediction made for ions on the sites (not the 1a background the formulas assume),
+    the content does not apply, so a model without time reversal gets no C4 corner charge."""
+    report = ct.classify(c4_breathing_square(gamma=0.3), "4", 1, time_reversal=False, invariants=["corner_charge"],
+                         options={"disclination_charge": {"ions": "sites"}})
+    record = report["corner_charge"]
+    assert record.status == "skipped" and "not established" in record.message
