@@ -151,3 +151,16 @@ def test_a_chern_insulator_predicts_no_charge_and_nothing_is_built():
     predicts nothing to measure in 2D without time reversal."""
     report = ct.verify_defects(qi_wu_zhang(m=1.0), "4", 1, invariants=["dislocation_response"])
     assert report.verification == ()
+
+
+def test_a_flake_whose_cells_are_not_symmetric_about_its_centre_gives_no_corner_verdict():
+    """A random C4 model (invented data, a test fixture) with an s orbital at 1a and an orbit of sites at 2c: a
+    whole cell (1a + both 2c sites) is not C4-symmetric, so neither is a flake of whole cells, and its four corner
+    sectors are not equivalent. Earlier this gave unquantised 'measurements' (−0.77 e) and false disagreements."""
+    from crystaltop.examples.crystalline import random_rotation_model
+
+    model = random_rotation_model(1, 4, orbitals=0, extra_site=0)
+    report = ct.verify_defects(model, "4", 1, time_reversal=False, ions=[((0.0, 0.0), 1.0)],
+                               invariants=["corner_charge"], sizes={"flake": 12})
+    corners = [c for c in report.verification if c.prediction == "corner_charge"]
+    assert corners and all(c.agree is None and "not C4-symmetric" in c.measured for c in corners)
