@@ -41,6 +41,17 @@ def _label(b) -> str:
     return "b=(" + ", ".join(str(v) for v in b) + ")"
 
 
+def _per_burgers_vector(vectors, indices, describe, record):
+    """For each Burgers vector b (integers nᵢ), ``s = Σ nᵢ indicesᵢ``: the value text ``describe(s)`` by label and the
+    record ``{"burgers": b, **record(s)}``."""
+    value, records = {}, []
+    for b in vectors:
+        s = int(np.dot(b, indices))
+        value[_label(b)] = describe(s)
+        records.append({"burgers": b, **record(s)})
+    return value, records
+
+
 def _why(context, name: str) -> str:
     rec = context.record(name)
     return "not installed" if rec is None else f"{rec.status}: {rec.message}"
@@ -66,12 +77,9 @@ class DislocationResponse(Invariant):
             if weak is None:
                 raise NotApplicable(f"needs the weak indices ({_why(context, 'weak_indices')})")
             nu = np.asarray(weak.value, dtype=int)
-            value, records = {}, []
-            for b in vectors:
-                s = int(np.dot(b, nu))
-                binds = s % 2 == 1
-                value[_label(b)] = "helical Kramers pair along the line" if binds else "nothing protected"
-                records.append({"burgers": b, "binds": binds, "B.M_nu/pi": s})
+            value, records = _per_burgers_vector(
+                vectors, nu, lambda s: "helical Kramers pair along the line" if s % 2 else "nothing protected",
+                lambda s: {"binds": s % 2 == 1, "B.M_nu/pi": s})
             return Outcome(
                 value=value, method="B·M_ν = π mod 2π (Ran, Zhang, Vishwanath, Nat. Phys. 5, 298 (2009))",
                 mesh="from weak_indices", details={"weak_indices": tuple(int(v) for v in nu),
@@ -83,11 +91,9 @@ class DislocationResponse(Invariant):
         if chern is None:
             raise NotApplicable(f"needs the Chern numbers of the three plane families ({_why(context, 'chern')})")
         c = np.asarray(chern.value, dtype=int)
-        value, records = {}, []
-        for b in vectors:
-            modes = int(np.dot(b, c))
-            value[_label(b)] = f"{abs(modes)} chiral mode(s)" if modes else "nothing protected"
-            records.append({"burgers": b, "chiral_modes": modes})
+        value, records = _per_burgers_vector(
+            vectors, c, lambda s: f"{abs(s)} chiral mode(s)" if s else "nothing protected",
+            lambda s: {"chiral_modes": s})
         return Outcome(value=value, method="B·G_C / 2π chiral modes (Ran, Zhang, Vishwanath 2009; from memory)",
                        mesh="from chern", details={"chern": tuple(int(v) for v in c), "per_burgers_vector": records},
                        notes=(f"rule: Σ nᵢ Cᵢ chiral modes along the line, C = {tuple(int(v) for v in c)} from chern",))
