@@ -58,6 +58,18 @@ def charge_case(size: int, repeats: int) -> dict:
             "outer": float(charge.charge[-1]), "error": float(charge.error[-1]), "method": charge.method}
 
 
+def scaling_table(sizes, case, solve_label, extra=None):
+    """A Markdown table of sample size, orbitals, build and solve times (and one more column ``(label, key)``)."""
+    columns = ["size", "orbitals", "build [s]", solve_label] + ([extra[0]] if extra else [])
+    print("| " + " | ".join(columns) + " |")
+    print("|" + "---:|" * len(columns))
+    for s in sizes:
+        r = case(s)
+        cells = [str(s), f"{r['orbitals']:,}", f"{r['build']:.2f}", f"{r['solve']:.2f}"]
+        cells += [f"{r[extra[1]]:.6f}"] if extra else []
+        print("| " + " | ".join(cells) + " |")
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("case", choices=["states", "charge"])
@@ -71,13 +83,8 @@ def main() -> None:
         print(f"BHZ, +π/2 disclination at 1b, size {size}: {row['orbitals']} orbitals")
         print(f"  build {row['build']:.2f} s, 20 states nearest the gap centre {row['solve']:.2f} s "
               f"(total {row['build'] + row['solve']:.2f} s; smallest |E| = {row['lowest']:.4f})")
-        sizes = (30, 60, 90, 116, 140) if args.scaling else ()
-        if sizes:
-            print("| size | orbitals | build [s] | 20 states [s] |")
-            print("|---:|---:|---:|---:|")
-            for s in sizes:
-                r = states_case(s, args.repeats)
-                print(f"| {s} | {r['orbitals']:,} | {r['build']:.2f} | {r['solve']:.2f} |")
+        if args.scaling:
+            scaling_table((30, 60, 90, 116, 140), lambda s: states_case(s, args.repeats), "20 states [s]")
     else:
         size = args.size or 230
         row = charge_case(size, args.repeats)
@@ -88,13 +95,9 @@ def main() -> None:
         print(f"  Q = {row['charge']:.6f} (outer disc {row['outer']:.6f}, error bound {row['error']:.1e}); "
               f"40-cell sample: {ref['outer']:.6f}, difference {abs(row['outer'] - ref['outer']):.1e}")
         print(f"  method: {row['method']}")
-        sizes = (40, 80, 120, 160, 230, 300) if args.scaling else ()
-        if sizes:
-            print("| size | orbitals | build [s] | Chebyshev charge [s] | Q(r = 8.5) |")
-            print("|---:|---:|---:|---:|---:|")
-            for s in sizes:
-                r = charge_case(s, args.repeats)
-                print(f"| {s} | {r['orbitals']:,} | {r['build']:.2f} | {r['solve']:.2f} | {r['outer']:.6f} |")
+        if args.scaling:
+            scaling_table((40, 80, 120, 160, 230, 300), lambda s: charge_case(s, args.repeats),
+                          "Chebyshev charge [s]", ("Q(r = 8.5)", "outer"))
 
 
 if __name__ == "__main__":
