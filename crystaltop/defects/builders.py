@@ -52,8 +52,14 @@ class _Prepared:
     ion_charges: np.ndarray
 
 
-def _prepare(model, filling, ions) -> _Prepared:
+def _prepare(model, filling, ions, *, builder: str | None = None, dim: int | None = None,
+             instead: str | None = None) -> _Prepared:
+    """The real-space form, filling, bulk gap and ions of a sample to build; with ``dim``, a model of another
+    dimension is refused first (naming ``builder`` and the builder to use ``instead``)."""
     form = model if isinstance(model, RealSpaceForm) else real_space_form(model)
+    if dim is not None and form.dim != dim:
+        hint = f"; for the {form.dim}D model {form.name!r} use {instead}" if instead else ""
+        raise DefectGeometryError(f"{builder} builds {'two' if dim == 2 else 'three'}-dimensional samples{hint}")
     n = form.n_states
     if filling is None:
         if n % 2:
@@ -568,11 +574,8 @@ def edge_dislocation(model, burgers, size=20, *, separation: float | None = None
         Burgers vector not a lattice vector; sample too small for the core (``MIN_MARGIN`` cells from the
         boundary) or the dipole; metallic model.
     """
-    prep = _prepare(model, filling, ions)
+    prep = _prepare(model, filling, ions, builder="edge_dislocation", dim=2, instead="dislocation_line")
     form = prep.form
-    if form.dim != 2:
-        raise DefectGeometryError(f"edge_dislocation builds 2D samples; for the {form.dim}D model {form.name!r} use "
-                                  "dislocation_line")
     b = _integer_vector(burgers, 2, "Burgers vector")
     spec = DefectSpec("edge_dislocation", size, burgers=tuple(int(x) for x in b), core=None if core is None else
                       tuple(np.asarray(core, dtype=float)), separation=separation, filling=prep.filling,
@@ -605,11 +608,8 @@ def dislocation_line(model, burgers, line_direction, size=12, kind: str = "edge"
     DefectGeometryError
         Non-lattice Burgers vector or line direction, a mixed dislocation for the kind asked, sample too small.
     """
-    prep = _prepare(model, filling, ions)
+    prep = _prepare(model, filling, ions, builder="dislocation_line", dim=3, instead="edge_dislocation")
     form = prep.form
-    if form.dim != 3:
-        raise DefectGeometryError(f"dislocation_line needs a 3D model; {form.name!r} is {form.dim}D "
-                                  "(use edge_dislocation)")
     b = _integer_vector(burgers, 3, "Burgers vector")
     line = _integer_vector(line_direction, 3, "line direction")
     if np.gcd.reduce(np.abs(line)) != 1:
@@ -791,10 +791,8 @@ def disclination(model, frank_angle: float, size=20, *, core="1a", filling: int 
         A Frank angle the lattice lacks (2π/3 on a square lattice) or the model breaks (2π/4 for a C4-breaking
         model), a core that is not such a rotation centre, a sample too small, a metallic model.
     """
-    prep = _prepare(model, filling, ions)
+    prep = _prepare(model, filling, ions, builder="disclination", dim=2)
     form = prep.form
-    if form.dim != 2:
-        raise DefectGeometryError("disclination builds two-dimensional samples")
     omega = _frank(frank_angle)
     fold, k, op, centre = _fold_for(form, omega, core)
     spec = DefectSpec("disclination", size, frank_angle=omega, core=core if isinstance(core, str) else tuple(centre),
@@ -872,10 +870,8 @@ def disclination_dipole(model, frank_angle: float, separation, size=24, *, core=
     core : str or (2,) reduced coordinates
         The first core (as for :func:`disclination`).
     """
-    prep = _prepare(model, filling, ions)
+    prep = _prepare(model, filling, ions, builder="disclination_dipole", dim=2)
     form = prep.form
-    if form.dim != 2:
-        raise DefectGeometryError("disclination_dipole builds two-dimensional samples")
     omega = _frank(frank_angle)
     if not 0 < omega < np.pi - 1e-9:
         raise DefectGeometryError(f"disclination_dipole needs 0 < Ω < π for its first core, got {omega:.4g}; the "
