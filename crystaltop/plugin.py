@@ -60,6 +60,7 @@ __all__ = [
     "plane",
     "line",
     "trims",
+    "trim_label",
     "occupied_eigenvalues",
     "inversion_parities",
     "DeferredMapping",
@@ -318,7 +319,8 @@ class DeferredMapping(Mapping):
         return repr(dict(self))
 
 
-def _trim_text(k) -> str:
+def trim_label(k) -> str:
+    """A time-reversal-invariant momentum in reduced coordinates as text, e.g. ``'(0, 1/2, 1/2)'``."""
     return "(" + ", ".join("1/2" if abs(v - 0.5) < 1e-9 else "0" for v in k) + ")"
 
 
@@ -327,7 +329,7 @@ def _parity_signs(lam: np.ndarray, points: np.ndarray, tol: float) -> np.ndarray
     off = np.abs(lam - sign).max(axis=-1)
     bad = np.nonzero(off > tol)[0]
     if bad.size:
-        raise SymmetryBreakingError(f"inversion eigenvalues at k={_trim_text(points[bad[0]])} are not ±1 "
+        raise SymmetryBreakingError(f"inversion eigenvalues at k={trim_label(points[bad[0]])} are not ±1 "
                                     f"(off by {float(off[bad[0]]):.1e})")
     return sign
 

@@ -22,14 +22,9 @@ CONVERGED = 0.35
 SMALLEST_LINK = 1e-6
 
 
-def plaquette_phases(links1: np.ndarray, links2: np.ndarray) -> tuple[np.ndarray, float]:
-    """F(k) on a periodic 2D mesh from the link matrices along its two axes (leading two dimensions),
-    and the smallest |det| of a link (the phases are meaningless where it vanishes)."""
-    return plaquette_phases_of(batched_det(links1), batched_det(links2))
-
-
 def plaquette_phases_of(u1: np.ndarray, u2: np.ndarray) -> tuple[np.ndarray, float]:
-    """:func:`plaquette_phases` from the link determinants ``det U_1``, ``det U_2`` (leading two dimensions)."""
+    """F(k) on a periodic 2D mesh from the link determinants ``det U_1``, ``det U_2`` along its two axes (leading
+    two dimensions), and the smallest |det| of a link (the phases are meaningless where it vanishes)."""
     a1, a2 = np.abs(u1), np.abs(u2)
     smallest = float(min(a1.min(), a2.min()))
     u1 = u1 / np.maximum(a1, 1e-300)

@@ -21,15 +21,12 @@ from __future__ import annotations
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, SymmetryBreakingError
-from crystaltop.plugin import CrossCheck, Invariant, Outcome, Requirements, hookimpl, inversion_parities, trims
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, hookimpl, inversion_parities, trim_label,
+                               trims)
 
 METHOD = ("parity counts at the TRIMs (Po, Vishwanath, Watanabe, Nat. Commun. 8, 50 (2017); "
           "Khalaf, Po, Vishwanath, Watanabe, PRX 8, 031070 (2018))")
 PARITY_TOL = 1e-6
-
-
-def _label(k) -> str:
-    return "(" + ", ".join("1/2" if abs(v - 0.5) < 1e-9 else "0" for v in k) + ")"
 
 
 def parity_differences(bands, group) -> tuple[np.ndarray, np.ndarray]:
@@ -69,7 +66,7 @@ class InversionIndicator(Invariant):
         kappa, weak = indicator(points, diff)
         second_order = kappa == 2 and not any(weak)
         details = {
-            "n_plus_minus_n_minus": {_label(k): int(d) for k, d in zip(points, diff)},
+            "n_plus_minus_n_minus": {trim_label(k): int(d) for k, d in zip(points, diff)},
             "kappa1": kappa,
             "weak": weak,
             "second_order": second_order,

@@ -29,16 +29,12 @@ from __future__ import annotations
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, SymmetryBreakingError
-from crystaltop.plugin import CrossCheck, Invariant, Outcome, Requirements, hookimpl, inversion_parities, trims
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, hookimpl, inversion_parities, trim_label,
+                               trims)
 
 METHOD = "Fu–Kane parity criterion (PRB 76, 045302 (2007))"
 #: largest distance of an inversion eigenvalue from ±1 accepted
 PARITY_TOL = 1e-6
-
-
-def trim_label(k) -> str:
-    """A TRIM in reduced coordinates as text, e.g. ``'(0, 1/2, 1/2)'``."""
-    return "(" + ", ".join("1/2" if abs(v - 0.5) < 1e-9 else "0" for v in k) + ")"
 
 
 def inversion_of(group):

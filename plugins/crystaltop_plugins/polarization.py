@@ -22,11 +22,6 @@ QUANTISATION_TOL = 1e-3
 _DENOMINATORS = 12  # allowed values are multiples of 1/12 (covers halves, thirds, quarters, sixths)
 
 
-def berry_phase_centres(wilson: np.ndarray) -> np.ndarray:
-    """Sum of Wannier centres ``-arg det W / 2π`` of each Wilson loop, in [0, 1)."""
-    return centre_sums(np.linalg.det(wilson))
-
-
 def centre_sums(determinants: np.ndarray) -> np.ndarray:
     """Sum of Wannier centres ``-arg det W / 2π`` from the Wilson-loop determinants, in [0, 1)."""
     return np.mod(-np.angle(determinants) / (2 * np.pi), 1.0)
