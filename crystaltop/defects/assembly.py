@@ -133,7 +133,6 @@ def _map_targets(rot, geom, powers, power, shift, cell, label, *, expand: bool):
 
     Returns (entry row, new cell, new label, coefficient) with one row per non-zero coefficient.
     """
-    count = len(label)
     rows_out, cells_out, labels_out, coef_out = [], [], [], []
     plain = power == 0
     if np.any(plain):
@@ -148,7 +147,6 @@ def _map_targets(rot, geom, powers, power, shift, cell, label, *, expand: bool):
         base = cell[idx] @ w.T + shift[idx]
         if expand:
             cand, coef, offset = _state_table(geom, rot, powers(m), int(m))
-            width = cand.shape[1]
             c = cand[label[idx]]  # (k, width)
             k = coef[label[idx]]
             ok = (c >= 0) & (np.abs(k) > 1e-14)
@@ -160,9 +158,11 @@ def _map_targets(rot, geom, powers, power, shift, cell, label, *, expand: bool):
         else:
             target_site, offset = geom.site_map(rot, int(m))
             site = geom.site[label[idx]]
-            first = {s: int(np.flatnonzero(geom.site == s)[0]) for s in np.unique(geom.site)}
+            sites, first_label = np.unique(geom.site, return_index=True)
+            first = np.zeros(int(sites.max()) + 1, dtype=np.int64)
+            first[sites] = first_label  # the first label of each site
             # labels of one site are distinct points only for states; ions are one label per site
-            new = np.array([first[int(target_site[s])] for s in site], dtype=np.int64) if idx.size else site
+            new = first[np.asarray(target_site)[site]] if idx.size else site
             rows_out.append(idx)
             cells_out.append(base + offset[site])
             labels_out.append(new)
@@ -170,7 +170,6 @@ def _map_targets(rot, geom, powers, power, shift, cell, label, *, expand: bool):
     if not rows_out:
         empty = np.zeros(0, dtype=np.int64)
         return empty, np.zeros((0, cell.shape[1]), dtype=np.int64), empty, np.zeros(0, dtype=complex)
-    del count
     return (np.concatenate(rows_out), np.concatenate(cells_out), np.concatenate(labels_out),
             np.concatenate(coef_out))
 
