@@ -5,14 +5,13 @@ from __future__ import annotations
 import os
 import time
 import traceback
-from dataclasses import replace
 from functools import lru_cache
 
 import pluggy
 
-from .errors import CrystaltopError, FillingError, NotApplicable, PluginError
+from .errors import CrystaltopError, NotApplicable, PluginError
 from .plugin import ENTRY_POINT_GROUP, PROJECT, Context, Outcome, Requirements, _HookSpecs
-from .report import FAILED, OK, SKIPPED, Report, Result
+from .report import FAILED, OK, SKIPPED, Result
 
 __all__ = ["InvariantRegistry", "default_registry", "applicable_invariants", "applicability", "dependency_order",
            "AUTOLOAD_ENV"]

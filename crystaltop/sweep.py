@@ -16,7 +16,6 @@ import csv
 import functools
 import itertools
 import json
-import sys
 import time
 from concurrent.futures import Executor, as_completed
 from dataclasses import dataclass, field

@@ -214,7 +214,7 @@ def _dislocation_jobs(model, record, dim, filling, ions, sizes, tolerance, count
                               _compare_bound_states(2 if pair else 0, pair, count)))
             if rec.get("charge") is not None:
                 q = float(rec["charge"])
-                comps.append((f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_charge(q, tolerance)))
+                comps.append((_charge_text(q, 1e-6), _compare_charge(q, tolerance)))
             build = (lambda b=b, size=size: edge_dislocation(model, b, size, separation=size // 2, filling=filling,
                                                              ions=ions))
         else:
@@ -237,6 +237,7 @@ def _dislocation_jobs(model, record, dim, filling, ions, sizes, tolerance, count
 
 def _disclination_jobs(model, record, filling, ions, sizes, tolerance):
     from .defects import disclination
+    from .defects.builders import frank_angle_label
 
     jobs = []
     size = int(sizes["disclination"])
@@ -245,31 +246,12 @@ def _disclination_jobs(model, record, filling, ions, sizes, tolerance):
     for rec in record.details.get("per_case", ()):
         core, omega, q = rec["core"], float(rec["frank_angle"]), float(rec["charge"])
         where = ", ".join(f"{float(x):g}" for x in np.atleast_1d(core))
-        label = f"Ω={_angle_text(omega)} at {rec.get('core_name', '')} ({where})".replace(" at  (", " at (")
+        label = f"Ω={frank_angle_label(omega)} at {rec.get('core_name', '')} ({where})".replace(" at  (", " at (")
         build = (lambda core=core, omega=omega: disclination(model, omega, size, core=core, filling=filling,
                                                              ions=ions))
         jobs.append(_Job("disclination_charge", label, build,
-                         [(f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_charge(q, tolerance))]))
+                         [(_charge_text(q, 1e-6), _compare_charge(q, tolerance))]))
     return jobs
-
-
-def _angle_text(omega: float) -> str:
-    """``+π/2``, ``−2π/3``, ...: the Frank angle as a signed multiple of π."""
-    k = omega / (2 * np.pi)
-    for n in (1, 2, 3, 4, 6):
-        m = round(k * n)
-        if m and abs(k * n - m) < 1e-9:
-            return ("+" if m > 0 else "−") + _pi_fraction(abs(m), n)
-    return f"{omega:+.4g}"
-
-
-def _pi_fraction(m: int, n: int) -> str:
-    """``2π m / n`` as text."""
-    num, den = 2 * m, n
-    g = math.gcd(num, den)
-    num, den = num // g, den // g
-    top = "π" if num == 1 else f"{num}π"
-    return top if den == 1 else f"{top}/{den}"
 
 
 def _corner_jobs(model, record, filling, ions, sizes, tolerance):
@@ -293,7 +275,7 @@ def _corner_jobs(model, record, filling, ions, sizes, tolerance):
         else:
             build = (lambda centre=centre: flake(model, shape, size, filling=filling, ions=ions, centre=centre))
         jobs.append(_Job("corner_charge", f"corner, flake about {where}", build,
-                         [(f"{q:+.4f} e ({_fraction_text(q)} mod e)", _compare_corner(q, n, tolerance))]))
+                         [(_charge_text(q, 1e-6), _compare_corner(q, n, tolerance))]))
     return jobs
 
 
@@ -325,14 +307,14 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
         if sample.n_states > 6000:
             raise CrystaltopError(f"the flake has {sample.n_states} states, too many for the dense check of the "
                                   "corner charge at several Fermi levels (at most 6000): give a smaller sizes['flake']")
-        if not _symmetric_about(sample, sample.ion_positions.mean(axis=0), n):
+        centre = sample.ion_positions.mean(axis=0)
+        if not _symmetric_about(sample, centre, n):
             raise CrystaltopError(f"the flake of whole cells is not C{n}-symmetric about its centre (the cells are "
                                   "chosen by the mean position of their orbitals, which this model's cell does not "
                                   "hold fixed), so its corner sectors are not equivalent")
         dense = sample.hamiltonian.toarray()
         e, v = np.linalg.eigh(dense.real if np.abs(dense.imag).max(initial=0.0) == 0.0 else dense)
         weight = np.abs(v) ** 2
-        centre = sample.ion_positions.mean(axis=0)
         rel = sample.ion_positions - centre
         corner = int(np.argmax(np.linalg.norm(rel, axis=1)))
         angle = np.angle(rel[:, 0] + 1j * rel[:, 1])

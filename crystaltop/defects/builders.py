@@ -367,7 +367,8 @@ def _full_turn(d0: np.ndarray, fold: int, name: str) -> complex:
     return eps
 
 
-def _angle_label(omega: float) -> str:
+def frank_angle_label(omega: float) -> str:
+    """A Frank angle as a signed multiple of π: ``"+π/2"``, ``"−2π/3"`` (else the number)."""
     for n in (1, 2, 3, 4, 6):
         k = omega * n / np.pi
         if abs(k - round(k)) < 1e-9:
@@ -806,7 +807,7 @@ def _sector_sample(prep: _Prepared, spec: DefectSpec, fold: int, k: int, op, cen
     omega = 2.0 * np.pi * k / fold
     sectors = fold - k
     if sectors < 1:
-        raise DefectGeometryError(f"Frank angle {_angle_label(omega) if k else 0} removes the whole plane (n = {fold})")
+        raise DefectGeometryError(f"Frank angle {frank_angle_label(omega) if k else 0} removes the whole plane (n = {fold})")
     radius = _parse_size(size, 1, "size")[0] / 2.0
     if radius < MIN_MARGIN + 1.0:
         raise DefectGeometryError(f"a sample of size {size} is too small for a disclination (the core needs "
@@ -842,7 +843,7 @@ def _sector_sample(prep: _Prepared, spec: DefectSpec, fold: int, k: int, op, cen
 
     states = points(form.positions)
     ions_pts = points(prep.ion_positions)
-    cores = (Core(label=f"disclination Ω = {_angle_label(omega) if k else '0'} at {tuple(float(x) for x in np.round(centre, 4))}",
+    cores = (Core(label=f"disclination Ω = {frank_angle_label(omega) if k else '0'} at {tuple(float(x) for x in np.round(centre, 4))}",
                   kind="disclination", position=c_cart, images=c_cart[None, :], frank_angle=omega,
                   burgers=np.zeros(2, dtype=int), reduced=centre),)
     return _finish(prep, form, spec, states, ions_pts, router, rot, d0, wrap=None, cores=cores,
@@ -934,9 +935,9 @@ def disclination_dipole(model, frank_angle: float, separation, size=24, *, core=
                       core=core if isinstance(core, str) else tuple(c1), burgers=tuple(int(x) for x in net),
                       filling=prep.filling, ions=None if ions is None else tuple(ions))
     cores = (
-        Core(f"disclination Ω = {_angle_label(omega)} at {tuple(float(x) for x in np.round(c1, 4))}", "disclination",
+        Core(f"disclination Ω = {frank_angle_label(omega)} at {tuple(float(x) for x in np.round(c1, 4))}", "disclination",
              c1c, image_sets[0], omega, np.zeros(2, dtype=int), c1),
-        Core(f"disclination Ω = {_angle_label(-omega)} at {tuple(float(x) for x in np.round(c2, 4))}", "disclination",
+        Core(f"disclination Ω = {frank_angle_label(-omega)} at {tuple(float(x) for x in np.round(c2, 4))}", "disclination",
              c2 @ lat, image_sets[1], -omega, np.zeros(2, dtype=int), c2),
     )
     return _finish(prep, form, spec, states, ions_pts, router, rot, d0, wrap=None, cores=cores,

@@ -29,7 +29,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import DefectGeometryError
-from .builders import (MIN_MARGIN, _frank, _lattice_fold, _same_point, _step_matrix, disclination_dipole,
+from .builders import (MIN_MARGIN, _frank, _lattice_fold, _same_point, _step_matrix, disclination_dipole, frank_angle_label,
                        rotation_centre_names)
 from .geometry import polygon_distance, relevant_directions
 from .realspace import RealSpaceForm, real_space_form
@@ -201,7 +201,7 @@ class DislocationSplitting:
 
     def table(self) -> str:
         """A text table: one row per separation."""
-        plus, minus = _angle_text(self.frank_angle), _angle_text(-self.frank_angle)
+        plus, minus = frank_angle_label(self.frank_angle), frank_angle_label(-self.frank_angle)
         head = ["s (reduced)", "|s|", "b", "states", f"core {plus}", f"Q {plus}", f"core {minus}", f"Q {minus}",
                 "Q total", "bound", f"weight {plus}/{minus}", "charge", "bound states"]
         rows = []
@@ -245,7 +245,7 @@ class DislocationSplitting:
     def draw(self, ax) -> None:
         """Draw the tracked quantity per core against the separation on a matplotlib Axes."""
         d = self.distances
-        plus, minus = _angle_text(self.frank_angle), _angle_text(-self.frank_angle)
+        plus, minus = frank_angle_label(self.frank_angle), frank_angle_label(-self.frank_angle)
         if self.track == "states":
             w = self.state_weights
             ax.plot(d, w[:, 0], "o-", label=f"{plus} core")
@@ -550,15 +550,6 @@ def _charge_text(q: BoundCharge | None) -> str:
     if q.error[-1] >= 5e-4:
         return f"{q.value:+.3f}(err {q.error[-1]:.1g})"
     return f"{q.value:+.3f}±{q.spread:.0e}" if q.spread >= 5e-4 else f"{q.value:+.3f}"
-
-
-def _angle_text(omega: float) -> str:
-    for n in (1, 2, 3, 4, 6):
-        k = omega * n / np.pi
-        if abs(k - round(k)) < 1e-9:
-            k = int(round(k))
-            return f"{'+' if k > 0 else '−'}{'' if abs(k) == 1 else abs(k)}π" + ("" if n == 1 else f"/{n}")
-    return f"{omega:+.4g}"
 
 
 def _vec(s) -> str:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from crystaltop.plugin import Invariant, Outcome, Requirements, batched_det, hookimpl, plane, uniform_mesh
+from crystaltop.plugin import Invariant, Outcome, Requirements, hookimpl, plane, uniform_mesh
 from crystaltop.errors import MeshTooCoarseError
 
 #: largest plaquette phase accepted, in units of π (the method is exact below 1; this leaves a wide margin)
