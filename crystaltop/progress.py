@@ -20,12 +20,6 @@ class _Silent:
     def close(self) -> None:
         pass
 
-    def __enter__(self):
-        return self
-
-    def __exit__(self, *exc) -> None:
-        pass
-
 
 def wanted(enabled: bool | None) -> bool:
     return sys.stderr.isatty() if enabled is None else bool(enabled)

@@ -7,7 +7,6 @@ cache, never diagonalised again; :attr:`BandData.stats` records what was diagona
 
 from __future__ import annotations
 
-import sys
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -15,6 +14,7 @@ import numpy as np
 from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError, SymmetryBreakingError
 from ..kspace import Grid
 from ..models.base import format_k
+from ..progress import progress_bar
 from .products import link_determinants, link_matrices, link_minors, ordered_product
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
@@ -308,15 +308,12 @@ class BandData:
         energies = np.empty((total, n))
         vectors = np.empty((total, n, n), dtype=complex)
         starts = range(0, total, step)
-        if len(starts) >= self.PROGRESS_MIN_CHUNKS and (self.progress or (self.progress is None and sys.stderr.isatty())):
-            try:
-                from tqdm import tqdm
-
-                starts = tqdm(starts, desc=f"diagonalising {what}", unit="chunk", leave=False)
-            except ImportError:  # progress is a convenience, never a requirement
-                pass
+        bar = progress_bar(len(starts), f"diagonalising {what}", "chunk",
+                           self.progress if len(starts) >= self.PROGRESS_MIN_CHUNKS else False)
         for start in starts:  # a handful of large batches, not a loop over k-points
             energies[start:start + step], vectors[start:start + step] = self._eigh(flat_k[start:start + step])
+            bar.update(1)
+        bar.close()
         return energies, vectors
 
     def _check_hermitian(self, h: np.ndarray, k: np.ndarray) -> None:
