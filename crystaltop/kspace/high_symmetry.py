@@ -48,6 +48,7 @@ from ..symmetry.groups import class_of_type_counts
 from ..symmetry.lattice_basis import matrix_in_basis
 
 __all__ = [
+    "wrap_reduced",
     "HighSymmetryMomentum",
     "MirrorPlane",
     "high_symmetry_momenta",
@@ -92,7 +93,8 @@ def _padded(vectors: np.ndarray) -> np.ndarray:
     return out
 
 
-def _mod1(k) -> np.ndarray:
+def wrap_reduced(k) -> np.ndarray:
+    """Reduced coordinates (of a momentum or a point) into [0, 1), rounded to 1e-9 so that 1 − ε becomes 0."""
     out = np.mod(np.round(np.asarray(k, dtype=float), 9), 1.0)
     out[np.isclose(out, 1.0, atol=1e-9)] = 0.0
     return out + 0.0
@@ -128,7 +130,7 @@ def _fraction_text(x: float) -> str:
 
 
 def _coordinates_name(k) -> str:
-    return "(" + ",".join(_fraction_text(x) for x in _mod1(k)) + ")"
+    return "(" + ",".join(_fraction_text(x) for x in wrap_reduced(k)) + ")"
 
 
 def planar_rotations(group, dim: int) -> tuple:
@@ -274,7 +276,7 @@ def _hexagonal_k(lattice2: np.ndarray) -> np.ndarray:
     a_vec = short[np.argmin(np.where(azimuth < 60.0, azimuth, 999.0))]
     a = np.linalg.norm(a_vec)
     k_cart = (4.0 * np.pi / (3.0 * a)) * a_vec / a
-    return _mod1(lattice2 @ k_cart / (2.0 * np.pi))
+    return wrap_reduced(lattice2 @ k_cart / (2.0 * np.pi))
 
 
 def _names_2d(points: np.ndarray, lattice: np.ndarray) -> list[str]:
@@ -403,7 +405,7 @@ def _names_3d(points: np.ndarray, lattice: np.ndarray) -> list[str]:
             if names[i] is not None:
                 continue
             kk = np.asarray(k) @ frame
-            base = _names_2d(_mod1(kk[:2])[None], in_plane)[0]
+            base = _names_2d(wrap_reduced(kk[:2])[None], in_plane)[0]
             up = abs(np.mod(kk[2], 1.0) - 0.5) < 1e-8
             if not up and abs(np.mod(kk[2] + 1e-12, 1.0)) > 1e-8:
                 names[i] = _coordinates_name(k)

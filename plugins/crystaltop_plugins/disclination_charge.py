@@ -124,7 +124,7 @@ import numpy as np
 
 from crystaltop.errors import CrystaltopError, NotApplicable
 from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, hookimpl,
-                               planar_rotations, rotation_sectors)
+                               planar_rotations, rotation_sectors, wrap_reduced)
 
 LZBH = "Li, Zhu, Benalcazar, Hughes, PRB 101, 115115 (2020)"
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
@@ -135,15 +135,9 @@ _TOL = 1e-6
 
 
 # ---------------------------------------------------------------------------------------------- geometry
-def _mod1(x) -> np.ndarray:
-    y = np.mod(np.round(np.asarray(x, dtype=float), 9), 1.0)
-    y[np.isclose(y, 1.0, atol=1e-9)] = 0.0
-    return y + 0.0
-
-
 def _snapped(x) -> np.ndarray:
     """A rotation centre on the exact 1/12 grid its coordinates lie on (every 2D crystallographic one does)."""
-    return np.array([float(Fraction(float(v)).limit_denominator(12)) for v in _mod1(x)]) % 1.0
+    return np.array([float(Fraction(float(v)).limit_denominator(12)) for v in wrap_reduced(x)]) % 1.0
 
 
 def _same_point(a, b) -> bool:
@@ -316,7 +310,7 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
         if key == "sites":
             pos = np.asarray(model.positions, dtype=float).reshape(-1, 2)
             q = Fraction(filling, len(pos))
-            ions = [(_mod1(p), q) for p in pos]
+            ions = [(wrap_reduced(p), q) for p in pos]
             text = f"{_text(q)} e on each of the {len(pos)} basis states (the builders' default)"
         elif key in names:
             sites = names[key]["sites"]
@@ -331,7 +325,7 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
                                   "[((x1, x2), charge), ...] in reduced coordinates")
     else:
         try:
-            ions = [(_mod1(np.asarray(p, dtype=float).reshape(2)), _fraction(q)) for p, q in spec]
+            ions = [(wrap_reduced(np.asarray(p, dtype=float).reshape(2)), _fraction(q)) for p, q in spec]
         except (TypeError, ValueError):
             raise CrystaltopError("ions must be 'sites', a Wyckoff name or [((x1, x2), charge), ...] in reduced "
                                   "coordinates") from None
@@ -349,7 +343,7 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
         raise CrystaltopError(f"the ions carry {float(total):g} e per cell but the filling is {filling}: the bulk "
                               "would not be neutral")
     for p, q in merged:
-        image = _mod1(np.asarray(w, dtype=float) @ p)
+        image = wrap_reduced(np.asarray(w, dtype=float) @ p)
         if not any(_same_point(image, p2) and q2 == q for p2, q2 in merged):
             raise CrystaltopError(f"the ions are not symmetric: {_text(q)} e at {tuple(np.round(p, 4).tolist())} "
                                   f"has no partner at its rotated position {tuple(np.round(image, 4).tolist())}")
@@ -442,7 +436,7 @@ class DisclinationCharge(Invariant):
         c_number = int(chern.value)
         if c_number != 0 and (n != 4 or np.linalg.det(np.asarray(context.lattice, dtype=float)) <= 0):
             raise NotApplicable(f"Chern number {c_number} ≠ 0 with C{n}" + (" on left-handed axes" if n == 4 else "")
-                                + f": no Wannier representation, and the Chern rule of this record (module docstring, "
+                                + ": no Wannier representation, and the Chern rule of this record (module docstring, "
                                 "item 4) was measured and fixed on right-handed C4 samples only. What C4 samples show "
                                 "(docs/defects.md): charges in units of e/2n, linear in the Frank angle, and a rotation "
                                 "representation multiplied by e^{2πij/n} shifts them by −C·j·Ω/2π")
@@ -663,7 +657,7 @@ class DisclinationCharge(Invariant):
         p_tot = p_el - sum((float(q) * p for p, q in ions), np.zeros(2))
         handed = 1 if np.linalg.det(np.asarray(context.lattice, dtype=float)) > 0 else -1
         # the Wannier-centre sum of the content, against the measured P
-        p_content = sorted({tuple(float(v) for v in np.round(_mod1(sum(
+        p_content = sorted({tuple(float(v) for v in np.round(wrap_reduced(sum(
             (c[i] * o["sites"].sum(axis=0) for i, o in enumerate(orbits)), np.zeros(2))), 6)) for c in contents})
         agree = all(_same_point(pc, p_el) for pc in p_content)
         origin = first[orbits[0]["name"]]
