@@ -62,6 +62,7 @@ __all__ = [
     "trims",
     "trim_label",
     "occupied_eigenvalues",
+    "occupied_eigenvalues_at",
     "inversion_parities",
     "DeferredMapping",
     "ELEMENTS",
@@ -287,6 +288,15 @@ def occupied_eigenvalues(bands: BandData, op, momentum) -> np.ndarray:
     except SymmetryBreakingError as exc:
         raise SymmetryBreakingError(f"{exc} (at {momentum.label}); check that the matrix given for {op.label} is a "
                                     "symmetry of the model") from None
+
+
+def occupied_eigenvalues_at(bands: BandData, op, momenta) -> list[np.ndarray]:
+    """:func:`occupied_eigenvalues` at several high-symmetry momenta in one batch; on a failure the momenta are
+    taken one by one, so the error names the first momentum where it occurs."""
+    try:
+        return bands.symmetry_eigenvalues_at(op, np.array([m.k for m in momenta], dtype=float))
+    except (GapClosedError, SymmetryBreakingError):
+        return [occupied_eigenvalues(bands, op, m) for m in momenta]
 
 
 class DeferredMapping(Mapping):

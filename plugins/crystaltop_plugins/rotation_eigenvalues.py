@@ -26,9 +26,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from crystaltop.errors import CrystaltopError, GapClosedError, SymmetryBreakingError
+from crystaltop.errors import CrystaltopError, SymmetryBreakingError
 from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta,
-                               hookimpl, occupied_eigenvalues, pair_name, planar_rotations, rotation_levels,
+                               hookimpl, occupied_eigenvalues_at, pair_name, planar_rotations, rotation_levels,
                                rotation_power, rotation_sectors, sector_names)
 
 FGB = "rotation eigenvalues (Fang, Gilbert, Bernevig, PRB 86, 115112 (2012))"
@@ -37,15 +37,6 @@ FGB = "rotation eigenvalues (Fang, Gilbert, Bernevig, PRB 86, 115112 (2012))"
 def counterclockwise_rotations(group, dim: int) -> list:
     """One rotation per axis and fold: the one by +2π/n about its (canonical) axis."""
     return [op for op in planar_rotations(group, dim) if op.fold in (2, 3, 4, 6) and (op.fold == 2 or op.angle > 0)]
-
-
-def occupied_eigenvalues_at(bands, op, momenta) -> list[np.ndarray]:
-    """:func:`occupied_eigenvalues` at several momenta in one batch; on a failure the momenta are taken one by
-    one, so the error names the first momentum where it occurs."""
-    try:
-        return bands.symmetry_eigenvalues_at(op, np.array([m.k for m in momenta], dtype=float))
-    except (GapClosedError, SymmetryBreakingError):
-        return [occupied_eigenvalues(bands, op, m) for m in momenta]
 
 
 def is_time_reversal_invariant(k) -> bool:

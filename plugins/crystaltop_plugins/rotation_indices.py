@@ -33,7 +33,7 @@ import numpy as np
 
 from crystaltop.errors import SymmetryBreakingError
 from crystaltop.plugin import (Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta, hookimpl,
-                               occupied_eigenvalues, planar_rotations, rotation_power, sector_names)
+                               occupied_eigenvalues_at, planar_rotations, rotation_power, sector_names)
 
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
 
@@ -50,7 +50,7 @@ class RotationIndices(Invariant):
         brackets, powers, counts_at, raw = {}, {}, {}, {}
         for n, op in sorted(ops.items()):
             fixed = [m for m in momenta if op.label in m.rotations]
-            lam = {m.label: occupied_eigenvalues(bands, op, m) for m in fixed}
+            lam = dict(zip([m.label for m in fixed], occupied_eigenvalues_at(bands, op, fixed)))
             power = {rotation_power(v, n, what=f"{op.label} at {label}") for label, v in lam.items()}
             if len(power) != 1:
                 raise SymmetryBreakingError(f"{op.label}^{n} is +1 at some momenta and −1 at others: its matrix is "
