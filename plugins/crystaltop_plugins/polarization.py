@@ -10,6 +10,7 @@ fixes P to a discrete set, the value is reported as the quantised one, with the 
 
 from __future__ import annotations
 
+from functools import lru_cache
 from itertools import product
 
 import numpy as np
@@ -68,23 +69,19 @@ def quantised_values(constraints, dim: int):
     return per
 
 
-#: allowed values already worked out, by the group's matrices and the lattice (they depend on nothing else)
-_ALLOWED: dict = {}
-
-
 def allowed_values(group, lattice, dim: int):
     """:func:`quantised_values` of the group's constraints on this lattice, worked out once per group and lattice."""
     lattice = np.asarray(lattice, dtype=float)
-    key = (dim, lattice.tobytes(), tuple((op.label, np.asarray(op.matrix, dtype=float).tobytes())
-                                         for op in group.operations))
-    found = _ALLOWED.get(key)
-    if found is None:
-        if len(_ALLOWED) > 256:
-            _ALLOWED.clear()
-        found = _ALLOWED[key] = quantised_values(symmetry_constraints(group, lattice, dim), dim)
-        for entry in found:
-            if entry is not None:
-                entry[1].setflags(write=False)
+    return _allowed_values(group, lattice.tobytes(), lattice.shape, dim)
+
+
+@lru_cache(maxsize=256)
+def _allowed_values(group, lattice_bytes: bytes, shape: tuple, dim: int):
+    lattice = np.frombuffer(lattice_bytes, dtype=float).reshape(shape)
+    found = quantised_values(symmetry_constraints(group, lattice, dim), dim)
+    for entry in found:
+        if entry is not None:
+            entry[1].setflags(write=False)  # shared between reports
     return found
 
 
