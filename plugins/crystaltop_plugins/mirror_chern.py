@@ -119,7 +119,6 @@ class MirrorChern(Invariant):
         largest = int(context.option("max_mesh", 192 if dim == 2 else 96))
         chern = context.result("chern")
         value, details, worst, mesh_used, checks = {}, {}, 0.0, set(), []
-        self._prefetch(context, mirrors, start)
         first = self._planes_at_once(context, mirrors, start)
         for op in mirrors:
             per_plane = {}
@@ -160,20 +159,6 @@ class MirrorChern(Invariant):
         return Outcome(value=value, method=f"mirror-sector Fukui–Hatsugai–Suzuki ({TEO_FU_KANE})",
                        mesh=", ".join(f"{n}x{n}" for n in sorted(mesh_used)) + " per plane", convergence=worst,
                        convergence_label="largest plaquette phase/π", cross_check=cross, details=details, notes=notes)
-
-    @staticmethod
-    def _prefetch(context, mirrors, n):
-        """The new points of the mirror planes that are planes k_i = c of the reduced axes, on the first mesh,
-        diagonalised in one batch (each plane is then read with its own gap check and errors, as before)."""
-        if context.dim != 3:
-            return
-        try:
-            planes = [pl for op in mirrors for pl in mirror_planes(op, context.lattice)]
-        except CrystaltopError:  # raised again, for the mirror concerned, by the loop over the mirrors
-            return
-        grids = [plane(3, 3 - pl.axes[0] - pl.axes[1], pl.level, (n, n)) for pl in planes if pl.axes is not None]
-        if len(grids) > 1:
-            context.bands.eigensystems(grids)
 
     def _planes_at_once(self, context, mirrors, n) -> dict:
         """The first pass of :meth:`_plane` on every mirror plane at once, the sector algebra and the
