@@ -302,7 +302,7 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
     sectors, such as the one-dimensional C_n irreps of an ungapped edge, changes a sector's charge by a fraction
     whenever E_F crosses one of them.)"""
     def measure(sample, cache):
-        from .defects import OccupiedDensity, region_charge
+        from .defects.solvers import occupied_densities_at, region_charge
 
         if sample.n_states > 6000:
             raise CrystaltopError(f"the flake has {sample.n_states} states, too many for the dense check of the "
@@ -312,9 +312,6 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
             raise CrystaltopError(f"the flake of whole cells is not C{n}-symmetric about its centre (the cells are "
                                   "chosen by the mean position of their orbitals, which this model's cell does not "
                                   "hold fixed), so its corner sectors are not equivalent")
-        dense = sample.hamiltonian.toarray()
-        e, v = np.linalg.eigh(dense.real if np.abs(dense.imag).max(initial=0.0) == 0.0 else dense)
-        weight = np.abs(v) ** 2
         rel = sample.ion_positions - centre
         corner = int(np.argmax(np.linalg.norm(rel, axis=1)))
         angle = np.angle(rel[:, 0] + 1j * rel[:, 1])
@@ -325,13 +322,9 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
         inside = (turn < np.pi / n - 1e-9) & ~at_centre
         shared = [(inside, 1.0), ((np.abs(turn - np.pi / n) <= 1e-9) & ~at_centre, 0.5), (at_centre, 1.0 / n)]
         levels = sample.gap.centre + sample.gap.width * np.asarray(CORNER_LEVELS)
-        charges, densities = [], []
-        for level in levels:
-            rho = weight[:, e < level].sum(axis=1)
-            dens = OccupiedDensity(rho, np.full(len(rho), 1e-12), np.ones(len(rho), dtype=bool), float(level),
-                                   "exact diagonalisation (numpy.linalg.eigh)", 0, False)
-            charges.append(sum(w * region_charge(sample, mask, dens)[0] for mask, w in shared if mask.any()))
-            densities.append(dens)
+        densities = occupied_densities_at(sample, levels)  # one dense diagonalisation for every level
+        charges = [sum(w * region_charge(sample, mask, dens)[0] for mask, w in shared if mask.any())
+                   for dens in densities]
         charges = np.array(charges)
         mid = len(levels) // 2
         q = float(charges[mid])

@@ -21,6 +21,7 @@ from .realspace import BulkGap
 from .samples import Sample
 
 __all__ = ["NearStates", "states_near", "local_density", "localisation", "OccupiedDensity", "occupied_density",
+           "occupied_densities_at",
            "BoundCharge", "bound_charge", "region_charge", "DefectMeasurement", "measure_defect"]
 
 #: Largest sample diagonalised densely by ``method="auto"``.
@@ -281,24 +282,13 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
         method = "exact" if n <= DENSE_LIMIT or electrons is not None else "chebyshev"
     mask = np.ones(n, dtype=bool) if region is None else np.asarray(region, dtype=bool)
     if method == "exact":
-        dense = h.toarray()
-        if np.abs(dense.imag).max(initial=0.0) == 0.0:
-            dense = dense.real  # a real symmetric eigenproblem is several times cheaper
-        e, v = np.linalg.eigh(dense)
-        tol_e = (1e-3 * sample.gap.width) if degeneracy_tol is None else float(degeneracy_tol)
+        e, v = _dense_spectrum(sample)
         if electrons is not None:
             electrons = int(electrons)
             if not 0 <= electrons <= n:
                 raise DefectGeometryError(f"electrons must be between 0 and {n}")
             e_f = float(0.5 * (e[electrons - 1] + e[electrons])) if 0 < electrons < n else e_f
-        near = np.abs(e - e_f) <= tol_e
-        occ = (e < e_f) & ~near
-        if near_fermi == "fill":
-            occ |= near
-        density = (np.abs(v[:, occ]) ** 2).sum(axis=1)
-        err = np.full(n, 1e-12)
-        return OccupiedDensity(_ro(density), _ro(err), _ro(np.ones(n, dtype=bool)), e_f,
-                               "exact diagonalisation (numpy.linalg.eigh)", int(near.sum()), near_fermi == "fill")
+        return _filled(sample, e, v, e_f, near_fermi, degeneracy_tol)
     if method != "chebyshev":
         raise DefectGeometryError(f"unknown method {method!r}: expected 'auto', 'exact' or 'chebyshev'")
     if electrons is not None:
@@ -320,6 +310,36 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
             f"(kernel polynomial method), {expansion.moments} moments; error bound = coefficient tail + "
             "⟨½exp(−(H − E_F)²/w²)⟩")
     return OccupiedDensity(_ro(density), _ro(error), _ro(mask), e_f, name, 0, False, expansion.moments, reach)
+
+
+def occupied_densities_at(sample: Sample, fermi_energies, *, near_fermi: str = "empty",
+                          degeneracy_tol: float | None = None) -> list[OccupiedDensity]:
+    """The exact occupied density at several Fermi levels from one dense diagonalisation (as
+    :func:`occupied_density` with ``method="exact"`` at each level)."""
+    if near_fermi not in ("empty", "fill"):
+        raise DefectGeometryError(f"near_fermi must be 'empty' or 'fill', got {near_fermi!r}")
+    e, v = _dense_spectrum(sample)
+    return [_filled(sample, e, v, float(level), near_fermi, degeneracy_tol) for level in np.atleast_1d(fermi_energies)]
+
+
+def _dense_spectrum(sample: Sample) -> tuple[np.ndarray, np.ndarray]:
+    dense = sample.hamiltonian.toarray()
+    if np.abs(dense.imag).max(initial=0.0) == 0.0:
+        dense = dense.real  # a real symmetric eigenproblem is several times cheaper
+    return np.linalg.eigh(dense)
+
+
+def _filled(sample: Sample, e, v, e_f: float, near_fermi: str, degeneracy_tol) -> OccupiedDensity:
+    """The density of the states below ``e_f``; those within the degeneracy tolerance all empty or all filled."""
+    n = len(e)
+    tol_e = (1e-3 * sample.gap.width) if degeneracy_tol is None else float(degeneracy_tol)
+    near = np.abs(e - e_f) <= tol_e
+    occ = (e < e_f) & ~near
+    if near_fermi == "fill":
+        occ |= near
+    density = (np.abs(v[:, occ]) ** 2).sum(axis=1)
+    return OccupiedDensity(_ro(density), _ro(np.full(n, 1e-12)), _ro(np.ones(n, dtype=bool)), e_f,
+                           "exact diagonalisation (numpy.linalg.eigh)", int(near.sum()), near_fermi == "fill")
 
 
 # ---------------------------------------------------------------------------------------------- charges
