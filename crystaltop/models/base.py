@@ -162,6 +162,34 @@ class BlochModel(abc.ABC):
         """
         return self._hamiltonian(as_momenta(k, self.dim))
 
+    def hamiltonian_on_mesh(self, shape) -> np.ndarray:
+        """Bloch Hamiltonian at every point ``k = j / N`` of a uniform Γ-centred mesh, in C order.
+
+        The same matrices as :meth:`hamiltonian` at those points, up to rounding; a model with a real-space form
+        (:class:`~crystaltop.LatticeModel`) sums it one axis at a time, which is several times faster on a mesh.
+
+        Parameters
+        ----------
+        shape : sequence of int
+            Points per axis, one per dimension (each at least 1).
+
+        Returns
+        -------
+        ndarray, shape (*shape, n_states, n_states), complex
+
+        Raises
+        ------
+        ShapeError
+            If ``shape`` does not have one positive entry per dimension.
+        """
+        try:
+            mesh = tuple(int(x) for x in shape)
+        except (TypeError, ValueError):
+            raise ShapeError(f"mesh shape must be {self.dim} positive integers, got {shape!r}") from None
+        if len(mesh) != self.dim or min(mesh) < 1:
+            raise ShapeError(f"mesh shape must be {self.dim} positive integers, got {shape!r}")
+        return self._hamiltonian_on_mesh(mesh)
+
     def symmetry_matrix(self, op, k) -> np.ndarray:
         """The matrix ``D_g(k)`` with ``D_g(k) H(k) D_g(k)^† = H(g k)`` for a symmetric model.
 
@@ -269,6 +297,11 @@ class BlochModel(abc.ABC):
     @abc.abstractmethod
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         """``H(k)`` for validated momenta ``k`` (..., dim)."""
+
+    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
+        """``H(k)`` on the mesh ``shape`` (validated); by default :meth:`_hamiltonian` at its points."""
+        axes = np.meshgrid(*[np.arange(n) / n for n in shape], indexing="ij")
+        return self._hamiltonian(np.stack(axes, axis=-1))
 
     @abc.abstractmethod
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:

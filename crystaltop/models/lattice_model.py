@@ -16,7 +16,7 @@ import numpy as np
 from ..errors import CrystaltopError, LatticeMismatchError, NonHermitianError, ShapeError
 from ..symmetry import expand_kinds, orbital_block, time_reversal_matrix
 from .base import BlochModel, as_lattice
-from .phases import bloch_sum
+from .phases import bloch_sum, mesh_sum
 
 __all__ = ["LatticeModel", "Site", "Bond"]
 
@@ -290,6 +290,10 @@ class LatticeModel(BlochModel):
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         cells, blocks = self._stacked()
         return bloch_sum(k, cells, blocks)
+
+    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
+        cells, blocks = self._stacked()
+        return mesh_sum(shape, cells, blocks)
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:
         fixed, shifts = self._symmetry_data(op)

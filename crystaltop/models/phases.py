@@ -1,4 +1,4 @@
-"""The Bloch phases ``exp(2πi k·R)`` of many momenta and lattice vectors, factorised per axis.
+"""The Bloch phases ``exp(2πi k·R)`` of many momenta and lattice vectors, factorised per axis, and Bloch sums.
 
 ``exp(2πi k·R) = Π_i z_i^{R_i}`` with ``z_i = exp(2πi k_i)``: one cosine and one sine per momentum and axis,
 then integer powers by multiplication, instead of one complex exponential per momentum and lattice vector. For the
@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["lattice_phases", "bloch_sum"]
+__all__ = ["lattice_phases", "bloch_sum", "mesh_sum"]
 
 
 #: below this many momenta the phases are gathered from the power tables in a few whole-array operations;
@@ -100,3 +100,43 @@ def bloch_sum(k: np.ndarray, cells: np.ndarray, blocks: np.ndarray) -> np.ndarra
     if whole < points:
         np.matmul(phases[whole:], table, out=out[whole:])
     return out.reshape(k.shape[:-1] + (n, n))
+
+
+#: largest dense box of lattice vectors :func:`mesh_sum` fills, relative to the number of vectors (a sparse set
+#: of long hoppings is summed by :func:`bloch_sum` instead)
+BOX_FILL = 8
+
+
+def mesh_sum(shape: tuple[int, ...], cells: np.ndarray, blocks: np.ndarray) -> np.ndarray:
+    """``H(k) = Σ_m exp(2πi k·cells[m]) blocks[m]`` at every point ``k = j / N`` of the uniform Γ-centred mesh
+    ``shape`` (C order): ``(*shape, n, n)``, equal to :func:`bloch_sum` at those points up to rounding.
+
+    The phases factorise per axis, so the sum is taken one axis at a time, the last first: over the box of
+    lattice vectors, a Fourier sum of ``R`` terms per axis (``R`` values of that coordinate), about
+    ``N^d n² R`` operations in all against ``N^d n² m`` for :func:`bloch_sum` over ``m`` vectors. Each stage is a
+    stack of products ``(1, R) @ (R, c)`` of at most :data:`SERIAL_PRODUCT` terms, each on one thread. A box more
+    than :data:`BOX_FILL` times larger than the set of vectors (a few long hoppings) is left to :func:`bloch_sum`.
+    """
+    shape = tuple(int(x) for x in shape)
+    m, n = blocks.shape[0], blocks.shape[-1]
+    dim = len(shape)
+    lo, hi = cells.min(axis=0, initial=0), cells.max(axis=0, initial=0)
+    extent = tuple(int(e) for e in hi - lo + 1)
+    if int(np.prod(extent)) > BOX_FILL * max(m, 1):
+        axes = np.meshgrid(*[np.arange(s) / s for s in shape], indexing="ij")
+        return bloch_sum(np.stack(axes, axis=-1), cells, blocks)
+    current = np.zeros(extent + (n * n,), dtype=complex)
+    np.add.at(current, tuple((cells - lo).T), blocks.reshape(m, n * n))  # a repeated vector adds, as in the sum
+    for axis in range(dim - 1, -1, -1):  # layout: lattice coordinates 0..axis, momenta axis+1.., then n²
+        count, terms = shape[axis], extent[axis]
+        table = np.exp((2j * np.pi / count) * np.outer(np.arange(count), np.arange(lo[axis], hi[axis] + 1)))
+        before = int(np.prod(extent[:axis]))
+        rest = current.size // (before * terms)
+        rows = current.reshape(before, 1, terms, rest)
+        out = np.empty((before, count, 1, rest), dtype=complex)
+        width = max(1, SERIAL_PRODUCT // terms)
+        for start in range(0, rest, width):  # column blocks (one for small models), not momenta
+            cols = slice(start, start + width)
+            np.matmul(table.reshape(1, count, 1, terms), rows[..., cols], out=out[..., cols])
+        current = out.reshape(extent[:axis] + shape[axis:] + (n * n,))
+    return current.reshape(shape + (n, n))

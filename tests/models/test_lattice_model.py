@@ -298,3 +298,34 @@ def test_the_summary_names_the_sizes():
     model.add_site([0, 0], "s px py")
     model.add_hopping(0.1, 0, 1, [1, 0])
     assert repr(model) == "LatticeModel('toy', 2D, 1 sites, 3 orbitals, 1 bonds, spinful)"
+
+
+# ---------------------------------------------------------------------------------------------- on a mesh
+@settings(max_examples=30, deadline=None)
+@given(model=random_lattice_models())
+def test_h_on_a_uniform_mesh_equals_h_at_its_points(model):
+    # the mesh sum (one Fourier sum per axis) against the sum over lattice vectors at each point, in C order
+    shape = (5, 4, 3)[: model.dim]
+    axes = np.meshgrid(*[np.arange(n) / n for n in shape], indexing="ij")
+    expected = model.hamiltonian(np.stack(axes, axis=-1))
+    got = model.hamiltonian_on_mesh(shape)
+    assert got.shape == shape + (model.n_states, model.n_states)
+    assert np.allclose(got, expected, atol=1e-12)
+
+
+def test_a_few_long_hoppings_on_a_mesh_are_summed_over_their_vectors_with_the_same_result():
+    # a box of lattice vectors far larger than the set of vectors is left to the sum over vectors (BOX_FILL)
+    model = LatticeModel(np.eye(3))
+    model.add_site([0, 0, 0], "s px")
+    model.add_hopping(0.3, 0, 1, [9, 0, -7])
+    model.add_hopping(0.2j, 1, 1, [0, 8, 0])
+    axes = np.meshgrid(*[np.arange(n) / n for n in (4, 6, 5)], indexing="ij")
+    assert np.allclose(model.hamiltonian_on_mesh((4, 6, 5)), model.hamiltonian(np.stack(axes, axis=-1)), atol=1e-12)
+
+
+@pytest.mark.parametrize("shape", [(4,), (4, 4, 4), (4, 0), "ab", None])
+def test_a_mesh_shape_that_is_not_one_positive_size_per_axis_is_refused(shape):
+    model = LatticeModel(np.eye(2))
+    model.add_site([0, 0], "s")
+    with pytest.raises(ShapeError, match="mesh shape must be 2 positive integers"):
+        model.hamiltonian_on_mesh(shape)
