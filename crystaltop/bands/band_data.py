@@ -15,7 +15,8 @@ from ..errors import FillingError, GapClosedError, NonHermitianError, ShapeError
 from ..kspace import Grid
 from ..models.base import format_k
 from ..progress import progress_bar
-from .products import link_determinants, link_matrices, link_minors, ordered_product
+from .products import (_diagonal_of, link_determinants, link_matrices, link_minors, minor_links, ordered_product,
+                       subset_phases)
 
 __all__ = ["BandData", "DiagonalisationStats", "format_k"]
 
@@ -107,6 +108,7 @@ class _MeshStore:
         self._scale = np.asarray(shape, dtype=float)
         self._strides = np.array([int(np.prod(shape[i + 1:])) for i in range(len(shape))])
         self._indices: dict[Grid, np.ndarray | None] = {}
+        self._full = False  # every point known (points are never forgotten)
 
     def grid_index(self, grid: Grid) -> np.ndarray | None:
         """The flat index in the mesh of every point of ``grid`` (shape ``grid.shape``), or None if some point is
@@ -178,7 +180,14 @@ class _MeshStore:
         self._e, self._v = energies.reshape(-1, n), vectors.reshape(-1, n, n)
         self.energies, self.vectors = self._e.reshape(self.shape + (n,)), self._v.reshape(self.shape + (n, n))
         self._known[:] = True
+        self._full = True
         return True
+
+    def holds_all(self, flat: np.ndarray) -> bool:
+        """Whether every point of ``flat`` is known (once the whole mesh is, without looking)."""
+        if not self._full:
+            self._full = bool(self._known.all())
+        return self._full or bool(self._known[flat].all())
 
     def coordinates(self, flat: np.ndarray) -> np.ndarray:
         """The reduced momenta ``j / N`` of the mesh points with the given flat indices, ``(m, dim)``."""
@@ -261,8 +270,12 @@ class BandData:
         self._gaps: dict[Grid, tuple[float, np.ndarray]] = {}
         # single points asked for again (high-symmetry momenta, by several invariants): by their exact bytes
         self._single: dict[bytes, tuple[np.ndarray, np.ndarray]] = {}
-        # Plücker coordinates of the occupied states per grid (shared by the link determinants of every axis)
+        # Plücker coordinates of the occupied states per grid (shared by the link determinants of every axis),
+        # and of the whole mesh store once it is complete (grids on it take theirs from it): (μ, conj μ) or None
         self._minors: dict[Grid, tuple] = {}
+        self._mesh_minors: tuple | None = None
+        # the direct gap above the filling at every point of the complete mesh store (grids on it read theirs)
+        self._mesh_gaps: np.ndarray | None = None
         # position phases exp(-2πi dk·X) of one step j/N along an axis, by (axis, N)
         self._steps: dict[tuple[int, int], np.ndarray] = {}
         # occupied-subspace representations already formed: (operation, k) -> (matrix, gap at k)
@@ -280,8 +293,10 @@ class BandData:
         total = flat_k.shape[0]
         # in chunks of about CHUNK_BYTES of H, so that H(k) is built, checked and diagonalised while in cache
         step = max(1, min(total, self.CHUNK_BYTES // (16 * n * n)))
+        whole = self._store is not None and on_store is not None and on_store.size == self._store._known.size \
+            and np.array_equal(on_store, np.arange(on_store.size))
         if step >= total:  # one chunk: eigh's own arrays are the result (no copy)
-            energies, vectors = self._eigh(flat_k)
+            energies, vectors = self._eigh(flat_k, mesh=self._store.shape if whole else None)
         else:
             energies, vectors = self._eigh_in_chunks(flat_k, step, what)
         if self._gauge_rng is not None:
@@ -292,10 +307,18 @@ class BandData:
             self._store.record(flat_k, energies, vectors, on_store)
         return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
 
-    def _eigh(self, kc: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)``."""
+    def _eigh(self, kc: np.ndarray, mesh: tuple[int, ...] | None = None) -> tuple[np.ndarray, np.ndarray]:
+        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)``; ``mesh``: the chunk is that
+        whole uniform mesh in C order, so H is built by the model's mesh sum (:meth:`BlochModel.hamiltonian_on_mesh`)."""
         n = self.model.n_states
-        h = np.asarray(self.model.hamiltonian(kc))
+        if mesh is not None and hasattr(self.model, "hamiltonian_on_mesh"):
+            h = np.asarray(self.model.hamiltonian_on_mesh(mesh))
+            if h.shape != tuple(mesh) + (n, n):
+                raise ShapeError(f"H on the mesh {'x'.join(map(str, mesh))} has shape {h.shape}, expected "
+                                 f"{tuple(mesh) + (n, n)}")
+            h = h.reshape(-1, n, n)
+        else:
+            h = np.asarray(self.model.hamiltonian(kc))
         if h.shape != (kc.shape[0], n, n):
             raise ShapeError(f"H(k) returned shape {h.shape}, expected {(kc.shape[0], n, n)}")
         if not getattr(self.model, "hermitian_by_construction", False):
@@ -670,8 +693,15 @@ class BandData:
     def gap(self, grid: Grid) -> tuple[float, np.ndarray]:
         """Smallest direct gap above the occupied bands on the grid and the k-point where it occurs."""
         if grid not in self._gaps:
-            e, _ = self.eigensystem(grid)
-            g = e[..., self.filling] - e[..., self.filling - 1]
+            flat = self._held(grid)
+            if flat is not None and self._store._full:  # the store's energies, without gathering the eigensystem
+                if self._mesh_gaps is None:
+                    e = self._store._e
+                    self._mesh_gaps = e[:, self.filling] - e[:, self.filling - 1]
+                g = self._mesh_gaps[flat]
+            else:
+                e, _ = self.eigensystem(grid)
+                g = e[..., self.filling] - e[..., self.filling - 1]
             j = np.unravel_index(int(np.argmin(g)), g.shape)
             where = np.array([grid.axes[i][j[i]] for i in range(grid.dim)])  # that point of grid.points
             self._gaps[grid] = (float(g[j]), where)
@@ -713,14 +743,7 @@ class BandData:
         if not grid.periodic[axis]:
             raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
         occ = self.occupied(grid)
-        phase = None
-        if embed:
-            phase = self._steps.get((axis, grid.shape[axis]))
-            if phase is None:
-                dk = np.zeros(self.model.dim)
-                dk[axis] = 1.0 / grid.shape[axis]
-                phase = self._steps[(axis, grid.shape[axis])] = np.asarray(self.model.position_phase(dk))
-        return occ, phase
+        return occ, (self._step_phase(grid, axis) if embed else None)
 
     def links(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
         """Link matrices ``<u(k)| e^{-2πi dk·X} |u(k + dk)>`` along a periodic axis, shape ``(*shape, m, m)``.
@@ -733,12 +756,56 @@ class BandData:
     def link_determinants(self, grid: Grid, axis: int, *, embed: bool = True) -> np.ndarray:
         """``det`` of the link matrices of :meth:`links`, shape ``(*shape,)`` (from Plücker coordinates of the
         occupied states where that is cheaper, see :func:`crystaltop.bands.products.link_determinants`)."""
-        occ, phase = self._loop_states(grid, axis, embed)
+        if not grid.periodic[axis]:
+            raise ShapeError(f"axis {axis} of the {grid.describe()} grid is not a closed loop")
         minors = self._minors.get(grid)
         if minors is None:
-            mu = link_minors(occ)
-            minors = self._minors[grid] = (mu, None if mu is None else np.conj(mu))
-        return link_determinants(occ, axis, phase, minors=minors[0], conj_minors=minors[1])
+            minors = self._minors[grid] = self._grid_minors(grid)
+        else:
+            self.check_gap(grid)
+        phase = self._step_phase(grid, axis) if embed else None
+        diagonal = None if phase is None else _diagonal_of(phase)
+        if minors[0] is None or (phase is not None and diagonal is None):  # the link matrices themselves
+            return link_determinants(self.eigensystem(grid)[1][..., : self.filling], axis, phase)
+        phases = None if diagonal is None else subset_phases(diagonal, self.filling)
+        return minor_links(minors[0], axis, phases, conj_minors=minors[1])
+
+    def _grid_minors(self, grid: Grid) -> tuple:
+        """(μ, conj μ) of the occupied states of a grid (gap checked), or (None, None) where the link
+        determinants are better formed from the link matrices; a grid on the complete mesh store takes its part of
+        the store's, which are formed once."""
+        self.check_gap(grid)
+        flat = self._held(grid)
+        if flat is None or not self._store._full:  # minors of the store only once it is complete
+            mu = link_minors(self.eigensystem(grid)[1][..., : self.filling])
+            return (mu, None if mu is None else np.conj(mu))
+        if self._mesh_minors is None:
+            mu = link_minors(self._store._v[..., : self.filling])
+            self._mesh_minors = (mu, None if mu is None else np.conj(mu))
+        mu, conj_mu = self._mesh_minors
+        if mu is None:
+            return (None, None)
+        if self._store.is_whole(grid, flat):
+            shape = grid.shape + mu.shape[-1:]
+            return (mu.reshape(shape), conj_mu.reshape(shape))
+        return (np.take(mu, flat, axis=0), np.take(conj_mu, flat, axis=0))
+
+    def _held(self, grid: Grid) -> np.ndarray | None:
+        """The flat index of every point of ``grid`` in the mesh store, if the store holds them all; else None."""
+        store = self._store
+        if store is None:
+            return None
+        flat = store.grid_index(grid)
+        return flat if flat is not None and store.holds_all(flat) else None
+
+    def _step_phase(self, grid: Grid, axis: int) -> np.ndarray:
+        """The position phase ``exp(-2πi dk·X)`` of one step of ``grid`` along ``axis``."""
+        phase = self._steps.get((axis, grid.shape[axis]))
+        if phase is None:
+            dk = np.zeros(self.model.dim)
+            dk[axis] = 1.0 / grid.shape[axis]
+            phase = self._steps[(axis, grid.shape[axis])] = np.asarray(self.model.position_phase(dk))
+        return phase
 
     def wilson_loops(self, grid: Grid, axis: int) -> np.ndarray:
         """Wilson loops along ``axis`` for every point of the other axes, shape ``(*other_shape, m, m)``."""

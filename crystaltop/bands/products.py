@@ -7,8 +7,8 @@ from math import comb
 
 import numpy as np
 
-__all__ = ["ordered_product", "link_matrices", "link_determinants", "link_minors", "plucker_coordinates",
-           "unitary_part", "batched_det", "hermitian_eigh"]
+__all__ = ["ordered_product", "link_matrices", "link_determinants", "link_minors", "minor_links", "subset_phases",
+           "plucker_coordinates", "unitary_part", "batched_det", "hermitian_eigh"]
 
 #: largest number of minors for which link determinants are formed from Plücker coordinates (one or two
 #: occupied bands only: their minors have closed forms; larger ones would need a determinant each)
@@ -101,8 +101,9 @@ def plucker_coordinates(vectors: np.ndarray) -> np.ndarray:
     subsets = list(combinations(range(n), m))
     if m == 2:
         out = np.empty(vectors.shape[:-2] + (len(subsets),), dtype=vectors.dtype)
+        first, second = vectors[..., 0], vectors[..., 1]  # (..., n) each
         for s, (i, j) in enumerate(subsets):
-            out[..., s] = vectors[..., i, 0] * vectors[..., j, 1] - vectors[..., j, 0] * vectors[..., i, 1]
+            out[..., s] = first[..., i] * second[..., j] - first[..., j] * second[..., i]
         return out
     return batched_det(vectors[..., np.array(subsets), :])
 
@@ -113,17 +114,45 @@ def link_minors(vectors: np.ndarray) -> np.ndarray | None:
     return plucker_coordinates(vectors) if _plucker_pays(*vectors.shape[-2:]) else None
 
 
+def subset_phases(diagonal: np.ndarray, m: int) -> np.ndarray:
+    """``φ_S``, the product of ``diagonal`` over each set ``S`` of ``m`` rows (lexicographic, as the minors)."""
+    n = diagonal.shape[-1]
+    return np.array([np.prod(diagonal[list(rows)]) for rows in combinations(range(n), m)])
+
+
+def minor_links(minors: np.ndarray, axis: int, phases: np.ndarray | None = None, *,
+                conj_minors: np.ndarray | None = None) -> np.ndarray:
+    """``Σ_S conj(μ_S(k)) φ_S μ_S(k + dk)`` between neighbours along a periodic grid ``axis`` of the Plücker
+    coordinates ``minors`` ``(*grid, C)``: the link determinants of :func:`link_determinants`, ``(*grid,)``.
+
+    ``phases`` is ``φ_S`` (:func:`subset_phases` of the diagonal of the position phase; None: all 1), and
+    ``conj_minors`` the conjugate of ``minors`` when it is kept for several axes.
+    """
+    axis = axis + minors.ndim - 1 if axis < 0 else axis
+    bra = np.conj(minors) if conj_minors is None else conj_minors
+    count = minors.shape[axis]
+
+    def part(start, stop):
+        return (slice(None),) * axis + (slice(start, stop),)
+
+    # products per set, the last point linked to the first, without a rolled copy; then one sum over the sets
+    terms = np.empty(np.broadcast_shapes(bra.shape, minors.shape), dtype=np.result_type(bra, minors))
+    np.multiply(bra[part(0, count - 1)], minors[part(1, count)], out=terms[part(0, count - 1)])
+    np.multiply(bra[part(count - 1, count)], minors[part(0, 1)], out=terms[part(count - 1, count)])
+    return terms.sum(axis=-1) if phases is None else terms @ phases
+
+
 def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None = None, *,
                       minors: np.ndarray | None = None, conj_minors: np.ndarray | None = None) -> np.ndarray:
     """``det <u(k)| P |u(k + dk)>`` between neighbours along a periodic grid axis, shape ``(*grid,)``.
 
     By the Cauchy–Binet formula the determinant of ``V(k)^† P V(k + dk)`` is ``Σ_S conj(μ_S(k)) φ_S μ_S(k + dk)``
     over the sets ``S`` of ``m`` rows, with ``μ`` the Plücker coordinates (:func:`plucker_coordinates`) and
-    ``φ_S`` the product of the diagonal of ``P`` over ``S``. That is a few multiplications per k-point instead of
-    a matrix product and a determinant, and ``μ`` serves every axis (pass it as ``minors``). Used when ``P`` is
-    diagonal (or absent), m <= 2 and there are at most :data:`PLUCKER_LIMIT` sets; otherwise the determinants of
-    :func:`link_matrices`. Equal to those up to rounding. ``conj_minors``, the conjugate of ``minors``, may be
-    passed too when it is kept for several axes.
+    ``φ_S`` the product of the diagonal of ``P`` over ``S`` (:func:`minor_links`). That is a few multiplications
+    per k-point instead of a matrix product and a determinant, and ``μ`` serves every axis (pass it as
+    ``minors``). Used when ``P`` is diagonal (or absent), m <= 2 and there are at most :data:`PLUCKER_LIMIT` sets;
+    otherwise the determinants of :func:`link_matrices`. Equal to those up to rounding. ``conj_minors``, the
+    conjugate of ``minors``, may be passed too when it is kept for several axes.
     """
     axis = axis + vectors.ndim if axis < 0 else axis
     n, m = vectors.shape[-2:]
@@ -131,20 +160,8 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     if not _plucker_pays(n, m) or (phase is not None and diagonal is None):
         return batched_det(link_matrices(vectors, axis, phase))
     mu = plucker_coordinates(vectors) if minors is None else minors
-    bra = np.conj(mu) if minors is None or conj_minors is None else conj_minors
-    ket = mu
-    if diagonal is not None:
-        phi = np.array([np.prod(diagonal[list(rows)]) for rows in combinations(range(n), m)])
-        ket = mu * phi
-    count = vectors.shape[axis]
-    out = np.empty(vectors.shape[:-2], dtype=np.result_type(bra, ket))
-
-    def part(start, stop):
-        return (slice(None),) * axis + (slice(start, stop),)
-
-    np.einsum("...s,...s->...", bra[part(0, count - 1)], ket[part(1, count)], out=out[part(0, count - 1)])
-    np.einsum("...s,...s->...", bra[part(count - 1, count)], ket[part(0, 1)], out=out[part(count - 1, count)])
-    return out
+    phases = None if diagonal is None else subset_phases(diagonal, m)
+    return minor_links(mu, axis, phases, conj_minors=None if minors is None else conj_minors)
 
 
 def unitary_part(mats: np.ndarray) -> np.ndarray:

@@ -141,3 +141,39 @@ def test_a_prefetch_does_not_check_the_gap_but_a_later_request_does():
     assert bands.prefetch([uniform_mesh((8, 8))]) == 64 and bands.gap_log == []
     with pytest.raises(GapClosedError, match=r"k=\(0\.500, 0\.500\)"):
         bands.occupied(uniform_mesh((8, 8)))
+
+
+@settings(max_examples=20, deadline=None)
+@given(n=st.integers(3, 5), m=st.integers(1, 2), seed=st.integers(0, 10_000), with_phase=st.booleans())
+def test_link_determinants_from_plucker_coordinates_equal_the_determinants_of_the_link_matrices(n, m, seed, with_phase):
+    # Cauchy–Binet: det(V† P V') = Σ_S conj(μ_S) φ_S μ'_S (products.link_determinants); the reference is the
+    # determinant of each link matrix (numpy.linalg.det)
+    from crystaltop.bands.products import link_determinants, link_matrices
+
+    rng = np.random.default_rng(seed)
+    a = rng.normal(size=(4, 5, n, n)) + 1j * rng.normal(size=(4, 5, n, n))
+    vectors = np.linalg.qr(a)[0][..., :m]
+    phase = np.diag(np.exp(2j * np.pi * rng.random(n))) if with_phase else None
+    for axis in (0, 1):
+        expected = np.linalg.det(link_matrices(vectors, axis, phase))
+        assert np.allclose(link_determinants(vectors, axis, phase), expected, atol=1e-12)
+
+
+def test_grids_on_a_complete_mesh_give_the_link_determinants_and_gaps_of_their_own_states():
+    # grids on the whole mesh store take the Plücker coordinates and gaps of the store; a band data without the
+    # mesh (the planes asked alone) forms them from the planes' own states. The links depend on the gauge, their
+    # product around each closed loop (det of the Wilson loop) does not.
+    from crystaltop.examples import fu_kane_mele
+
+    model = fu_kane_mele(dt=0.4, frame="bond")
+    grids = [uniform_mesh((8, 8, 8)), uniform_mesh((4, 4, 4)), plane(3, 1, 0.0, (8, 8)), plane(3, 2, 0.5, (8, 8))]
+    whole = BandData(model, filling=2)
+    whole.prefetch(grids[:1])
+    for g in grids:
+        alone = BandData(model, filling=2)
+        assert whole.gap(g)[0] == pytest.approx(alone.gap(g)[0], rel=1e-12)
+        for axis in (i for i in range(3) if g.periodic[i]):
+            for embed in (True, False):
+                got = np.prod(whole.link_determinants(g, axis, embed=embed), axis=axis)
+                assert np.allclose(got, np.prod(alone.link_determinants(g, axis, embed=embed), axis=axis), atol=1e-10)
+    assert whole._mesh_minors is not None and whole.stats.k_points == 512
