@@ -161,37 +161,40 @@ class MirrorChern(Invariant):
                        convergence_label="largest plaquette phase/π", cross_check=cross, details=details, notes=notes)
 
     def _planes_at_once(self, context, mirrors, n) -> dict:
-        """The first pass of :meth:`_plane` on every mirror plane at once, the sector algebra and the
-        Fukui–Hatsugai–Suzuki sums stacked over the planes: ``(mirror label, plane name) -> result``. Empty when
-        any plane fails a check, or when the planes' sectors differ in size: then :meth:`_plane` goes through
-        them one by one and raises, or refines, exactly as without this pass."""
+        """The first pass of :meth:`_plane` on every mirror plane at once: the states of all planes in one lookup,
+        the mirror matrices in one call per mirror, the sector algebra and the Fukui–Hatsugai–Suzuki sums stacked
+        over the planes: ``(mirror label, plane name) -> result``. Empty when any plane fails a check, or when the
+        planes' sectors differ in size: then :meth:`_plane` goes through them one by one and raises, or refines,
+        exactly as without this pass."""
         try:
             planes = [(op, pl) for op in mirrors for pl in mirror_planes(op, context.lattice)]
             if len(planes) < 2:
                 return {}
-            occ, d = [], []
-            for op, pl in planes:
-                o, pts = self._occupied_on_plane(context, pl, n)
-                occ.append(o)
-                d.append(np.asarray(context.model.symmetry_matrix(op, pts)))
-            occ, d = np.stack(occ), np.stack(d)
+            pts = np.stack([self._plane_points(context, pl, n) for _, pl in planes])  # (planes, n, n, dim)
+            bands = context.bands
+            occ = bands.occupied_at(pts.reshape(-1, context.dim))  # the gap is checked on the same lookup
+            occ = occ.reshape(pts.shape[:3] + occ.shape[-2:])
+            d = np.empty(pts.shape[:3] + (occ.shape[-2],) * 2, dtype=complex)
+            first = 0
+            for op in mirrors:  # one call per mirror for all its planes
+                count = sum(1 for o, _ in planes if o is op)
+                d[first:first + count] = context.model.symmetry_matrix(op, pts[first:first + count])
+                first += count
         except Exception:  # met again, for the plane concerned, by the loop over the planes
             return {}
         s = np.conj(np.swapaxes(occ, -1, -2)) @ d @ occ
         m = s.shape[-1]
         if np.abs(np.conj(np.swapaxes(s, -1, -2)) @ s - np.eye(m)).max() > 1e-6:
             return {}
-        square = np.einsum("...ii->...", s @ s) / m
-        lam0, names = [], []
-        for sq in square:  # one test per plane, as in _plane
-            c = complex(np.mean(sq))
-            if abs(c - 1) < 1e-6 and np.abs(sq - 1).max() <= 1e-6 + 1e-5:
-                lam0.append(1.0), names.append(("+1", "-1"))
-            elif abs(c + 1) < 1e-6 and np.abs(sq + 1).max() <= 1e-6 + 1e-5:
-                lam0.append(1j), names.append(("+i", "-i"))
-            else:
-                return {}
-        a = s / np.array(lam0).reshape(-1, 1, 1, 1, 1)
+        square = np.einsum("...ii->...", s @ s).reshape(len(planes), -1) / m
+        mean = square.mean(axis=1)
+        # as in _plane, per plane: all +1 (spinless) or all −1 (spin ½)
+        plus_one = (np.abs(mean - 1) < 1e-6) & (np.abs(square - 1).max(axis=1) <= 1e-6 + 1e-5)
+        minus_one = (np.abs(mean + 1) < 1e-6) & (np.abs(square + 1).max(axis=1) <= 1e-6 + 1e-5)
+        if not np.all(plus_one | minus_one):
+            return {}
+        lam0 = np.where(plus_one, 1.0 + 0j, 1j)
+        a = s / lam0.reshape(-1, 1, 1, 1, 1)
         a = 0.5 * (a + np.conj(np.swapaxes(a, -1, -2)))
         w, u = hermitian_eigh(a)
         n_minus = np.count_nonzero(w < 0, axis=-1)
@@ -199,14 +202,33 @@ class MirrorChern(Invariant):
             return {}
         k = int(n_minus.flat[0])
         minus, plus = occ @ u[..., :k], occ @ u[..., k:]
-        c_plus, e1, f1 = fhs_cherns(plus)
-        c_minus, e2, f2 = fhs_cherns(minus)
+        count = len(planes)
+        if k == m - k:  # sectors of one size: both in one stacked sum
+            c, e, f = fhs_cherns(np.concatenate([plus, minus]))
+            c_plus, e1, f1, c_minus, e2, f2 = c[:count], e[:count], f[:count], c[count:], e[count:], f[count:]
+        else:
+            c_plus, e1, f1 = fhs_cherns(plus)
+            c_minus, e2, f2 = fhs_cherns(minus)
         total, _, f3 = fhs_cherns(occ)
         return {(op.label, pl.name): {
-                    "C+": c_plus[i], "C-": c_minus[i], "total": total[i], "sector_eigenvalues": names[i],
+                    "C+": c_plus[i], "C-": c_minus[i], "total": total[i],
+                    "sector_eigenvalues": ("+1", "-1") if plus_one[i] else ("+i", "-i"),
                     "sector_sizes": (m - k, k), "mesh": f"{n}x{n}", "integer_deviation": max(e1[i], e2[i]),
                     "largest_plaquette_phase": max(f1[i], f2[i], f3[i])}
                 for i, (op, pl) in enumerate(planes)}
+
+    @staticmethod
+    def _plane_points(context, pl, n) -> np.ndarray:
+        """The momenta of a plane's ``n x n`` mesh ``(n, n, dim)``, in the order of :meth:`_occupied_on_plane`."""
+        dim, axes = context.dim, pl.axes
+        if dim == 2:
+            pts = uniform_mesh((n, n)).points
+            return pts if axes == (0, 1) else np.swapaxes(pts, 0, 1)
+        if axes is not None:
+            fixed = 3 - axes[0] - axes[1]
+            pts = np.squeeze(plane(3, fixed, pl.level, (n, n)).points, axis=fixed)
+            return np.swapaxes(pts, 0, 1) if axes[0] > axes[1] else pts
+        return pl.points(n)
 
     # ------------------------------------------------------------------ one plane
     def _occupied_on_plane(self, context, pl, n):
