@@ -67,6 +67,27 @@ def paired(counts: np.ndarray, n: int, power: int, spinful: bool) -> dict | None
     return out
 
 
+def sector_counts(eigenvalues: list, n: int, *, tol: float = 1e-4) -> tuple[int | None, list | None]:
+    """``C_n^n`` and the :func:`count_sectors` of each momentum's eigenvalues, in one batch when every momentum
+    has as many and all pass the checks of :func:`rotation_power` and :func:`count_sectors` with one power;
+    ``(None, None)`` otherwise (the caller then goes one by one, for the error that names the momentum)."""
+    if not eigenvalues or len({len(lam) for lam in eigenvalues}) != 1:
+        return None, None
+    lam = np.asarray(eigenvalues, dtype=complex)  # (momenta, occupied)
+    powers = lam ** int(n)
+    for power in (1, -1):
+        if np.all(np.abs(powers - power) < tol * n):
+            break
+    else:
+        return None, None
+    dist = np.abs(lam[..., None] - rotation_sectors(n, power))
+    sector = np.argmin(dist, axis=-1)
+    if np.take_along_axis(dist, sector[..., None], axis=-1).max(initial=0.0) > tol:
+        return None, None
+    counts = (sector[..., None] == np.arange(n)).sum(axis=1)  # per momentum, as count_sectors' bincount
+    return power, list(counts.astype(int))
+
+
 def chern_mod_n(n: int, op_by_fold: dict, fixed: dict, eig: dict, power: int) -> tuple[int, str] | None:
     """C mod n from the Fang–Gilbert–Bernevig product, or None if a needed rotation or momentum is missing.
 
@@ -131,16 +152,20 @@ class RotationEigenvalues(Invariant):
             n = op.fold
             entry, raw = {}, {}
             fixed = [m for m in momenta if op.label in m.rotations]
-            power = None
-            for m, lam in zip(fixed, occupied_eigenvalues_at(bands, op, fixed) if fixed else []):
+            lams = occupied_eigenvalues_at(bands, op, fixed) if fixed else []
+            power, all_counts = sector_counts(lams, n)
+            if all_counts is None:  # some momentum fails a check: one by one, for the error that names it
+                power, all_counts = None, []
+                for m, lam in zip(fixed, lams):
+                    here = rotation_power(lam, n, what=f"{op.label} at {m.label}")
+                    if power is not None and here != power:
+                        raise SymmetryBreakingError(
+                            f"{op.label}^{n} is {power:+d} at some momenta and {here:+d} at {m.label}: "
+                            "its matrix is not a consistent representation")
+                    power = here
+                    all_counts.append(count_sectors(lam, n, power))
+            for m, lam, counts in zip(fixed, lams, all_counts):
                 eig[(op.label, m.label)] = lam
-                here = rotation_power(lam, n, what=f"{op.label} at {m.label}")
-                if power is not None and here != power:
-                    raise SymmetryBreakingError(
-                        f"{op.label}^{n} is {power:+d} at some momenta and {here:+d} at {m.label}: "
-                        "its matrix is not a consistent representation")
-                power = here
-                counts = count_sectors(lam, n, power)
                 raw[m.label] = counts.tolist()
                 pairs = paired(counts, n, power, spinful) if (
                     context.time_reversal and is_time_reversal_invariant(m.k)) else None

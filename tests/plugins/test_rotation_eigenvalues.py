@@ -144,3 +144,24 @@ def test_fang_gilbert_bernevig_value_equals_the_lattice_chern_number_mod_n(n, se
         return  # a gap too small for the meshes allowed
     checks = [c for c in chern.cross_checks if "Fang" in c.method]
     assert checks and checks[0].agree, f"C = {chern.value}, FGB {checks[0].value if checks else None}"
+
+
+@settings(max_examples=40, deadline=None)
+@given(n=st.sampled_from([2, 3, 4, 6]), power=st.sampled_from([1, -1]), momenta=st.integers(1, 5),
+       occupied=st.integers(1, 4), seed=st.integers(0, 10_000), stray=st.booleans())
+def test_the_batched_sector_counts_equal_the_counts_momentum_by_momentum(n, power, momenta, occupied, seed, stray):
+    # sector_counts (one batch) against count_sectors and rotation_power of crystaltop.plugin at each momentum; a
+    # stray phase anywhere sends the caller back to the one-by-one path, which names the momentum
+    from crystaltop.plugin import count_sectors, rotation_power, rotation_sectors
+    from crystaltop_plugins.rotation_eigenvalues import sector_counts
+
+    rng = np.random.default_rng(seed)
+    sectors = rotation_sectors(n, power)
+    lams = [sectors[rng.integers(0, n, occupied)] * np.exp(1e-7j * rng.normal(size=occupied)) for _ in range(momenta)]
+    if stray:
+        lams[rng.integers(momenta)][0] *= np.exp(0.3j)
+        assert sector_counts(lams, n) == (None, None)
+        return
+    got_power, got = sector_counts(lams, n)
+    assert got_power == power == rotation_power(lams[0], n)
+    assert [c.tolist() for c in got] == [count_sectors(lam, n, power).tolist() for lam in lams]
