@@ -128,3 +128,25 @@ def test_a_three_dimensional_report_shares_one_set_of_diagonalisations():
     hits = report.band_stats["cache_hits"]
     assert hits > 0
     assert report["chern"].value == (0, 0, 0)
+
+
+def _essentials(report):
+    return {r.name: (r.status, r.value, r.message, tuple((c.method, c.value, c.agree) for c in r.cross_checks))
+            for r in report}
+
+
+@pytest.mark.parametrize("entry", [e for e in __import__("crystaltop.examples.published", fromlist=["CATALOGUE"]).CATALOGUE
+                                   if e.time_reversal], ids=lambda e: e.name)
+def test_taking_the_states_at_minus_k_by_time_reversal_changes_no_value_status_or_message(entry):
+    # the same report whether H(−k) is diagonalised or its states are U_T V(k)* (BandData's time_reversal), on
+    # the gapped point of every time-reversal-symmetric catalogue model and on its gapless point, with a random gauge
+    builds = [entry.build] + ([entry.gapless] if entry.gapless is not None else [])
+    for i, build in enumerate(builds):
+        model = build()
+        halved = ct.classify(model, group=entry.group, filling=entry.filling, gauge_seed=2)
+        whole = ct.classify(model, group=entry.group, filling=entry.filling, gauge_seed=2, halve_by_time_reversal=False)
+        assert _essentials(halved) == _essentials(whole)
+        assert whole.band_stats["time_reversed"] == 0
+        assert halved.band_stats["k_points"] == whole.band_stats["k_points"]
+        if i == 0:  # the gapped point: its meshes are (about) halved
+            assert halved.band_stats["time_reversed"] > 0.3 * halved.band_stats["k_points"]

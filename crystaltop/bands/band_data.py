@@ -109,6 +109,7 @@ class _MeshStore:
         self._strides = np.array([int(np.prod(shape[i + 1:])) for i in range(len(shape))])
         self._indices: dict[Grid, np.ndarray | None] = {}
         self._full = False  # every point known (points are never forgotten)
+        self._partners: np.ndarray | None = None  # flat index of −k for every flat index k
 
     def grid_index(self, grid: Grid) -> np.ndarray | None:
         """The flat index in the mesh of every point of ``grid`` (shape ``grid.shape``), or None if some point is
@@ -183,6 +184,13 @@ class _MeshStore:
         self._full = True
         return True
 
+    def partner(self, flat: np.ndarray) -> np.ndarray:
+        """The flat index of ``−k`` for each point ``k`` of ``flat`` (the mesh is closed under k -> −k)."""
+        if self._partners is None:
+            j = np.indices(self.shape).reshape(len(self.shape), -1)
+            self._partners = np.ravel_multi_index(tuple((-j) % np.array(self.shape)[:, None]), self.shape)
+        return self._partners[flat]
+
     def holds_all(self, flat: np.ndarray) -> bool:
         """Whether every point of ``flat`` is known (once the whole mesh is, without looking)."""
         if not self._full:
@@ -201,16 +209,38 @@ class _MeshStore:
         return on
 
 
+def _time_reversal_map(u_t, n: int):
+    """``V ↦ U_T V*`` for stacks of eigenvector matrices ``(m, n, n)``: a gather of rows with a phase each when
+    ``U_T`` has one non-zero entry per row (real orbitals, with or without spin), a matrix product otherwise."""
+    u = np.asarray(u_t, dtype=complex)
+    if u.shape != (n, n):
+        raise ShapeError(f"the time-reversal matrix has shape {u.shape}, expected {(n, n)}")
+    nonzero = np.abs(u) > 0
+    if np.all(nonzero.sum(axis=1) == 1):
+        cols = np.argmax(nonzero, axis=1)
+        phases = u[np.arange(n), cols]
+
+        def reverse(v):
+            out = np.empty_like(v)
+            for i in range(n):  # one row of every matrix at once (n rows of the basis, not k-points)
+                np.multiply(np.conj(v[:, cols[i], :]), phases[i], out=out[:, i, :])
+            return out
+        return reverse
+    return lambda v: u @ np.conj(v)
+
+
 @dataclass
 class DiagonalisationStats:
     """Bookkeeping of the eigen-decompositions done by one :class:`BandData`."""
 
-    #: number of k-points diagonalised in total
+    #: number of k-points whose eigensystems were formed (each once), diagonalised or by time reversal
     k_points: int = 0
     #: description and size of each batch diagonalised, in order
     batches: list = field(default_factory=list)
     #: number of requests served from the cache without diagonalising
     cache_hits: int = 0
+    #: of the k-points, how many took their states from their partner −k by time reversal (not diagonalised)
+    time_reversed: int = 0
 
 
 class BandData:
@@ -233,6 +263,10 @@ class BandData:
     progress : bool, optional
         Show a progress bar (tqdm) while diagonalising a large grid; default only when standard error is a
         terminal. False turns it off.
+    time_reversal : (n, n) array, optional
+        The unitary ``U_T`` of a time reversal the model respects (``U_T H(k)* U_T† = H(−k)``, checked by the
+        caller). Given, a point of the mesh store whose partner ``−k`` is known is not diagonalised: its states are
+        ``U_T V(−k)*`` (about half the diagonalisations of a whole mesh). ``stats.time_reversed`` counts them.
     """
 
     #: size of H(k) built and diagonalised at once (bytes)
@@ -241,7 +275,7 @@ class BandData:
     PROGRESS_MIN_CHUNKS = 4
 
     def __init__(self, model, filling: int, *, gap_tol: float = 1e-6, herm_tol: float = 1e-9,
-                 gauge_seed: int | None = None, progress: bool | None = None):
+                 gauge_seed: int | None = None, progress: bool | None = None, time_reversal=None):
         n = int(model.n_states)
         filling = int(filling)
         if not 0 < filling < n:
@@ -252,6 +286,8 @@ class BandData:
         self.herm_tol = float(herm_tol)
         self._gauge_rng = None if gauge_seed is None else np.random.default_rng(gauge_seed)
         self.progress = progress
+        # V ↦ U_T V* (the states at −k from those at k), when the model's time reversal may be used
+        self._reverse = None if time_reversal is None else _time_reversal_map(time_reversal, n)
         self.stats = DiagonalisationStats()
         self._grids: dict[Grid, tuple[np.ndarray, np.ndarray]] = {}
         # the cached grids that brought new points and are contained in no other such grid: every cached point
@@ -286,55 +322,115 @@ class BandData:
     # ------------------------------------------------------------------ diagonalisation
     def _diagonalise(self, k: np.ndarray, what: str, *, on_store=None) -> tuple[np.ndarray, np.ndarray]:
         """Eigensystems of the momenta ``k`` ``(..., dim)``, counted in the statistics and kept in the mesh store
-        (``on_store``: the flat index in it of every point, when the caller knows that all lie on it)."""
+        (``on_store``: the flat index in it of every point, when the caller knows that all lie on it).
+
+        With the model's time reversal (``time_reversal`` of the constructor), a point of the mesh store whose
+        partner ``−k`` is known, or comes earlier in the batch, is not diagonalised: its states are ``U_T V(−k)*``
+        with the energies of ``−k`` (``U_T H(k)* U_T† = H(−k)``). Its H(k) is still built and checked.
+        """
         n = self.model.n_states
         shape = k.shape[:-1]
         flat_k = k.reshape(-1, k.shape[-1])
         total = flat_k.shape[0]
+        store = self._store
+        whole = store is not None and on_store is not None and on_store.size == store._known.size \
+            and np.array_equal(on_store, np.arange(on_store.size))
+        sources = self._time_reversed_sources(on_store) if self._reverse is not None and on_store is not None \
+            and store is not None else None
+        rows = None if sources is None else np.flatnonzero((sources[0] < 0) & (sources[1] < 0))
         # in chunks of about CHUNK_BYTES of H, so that H(k) is built, checked and diagonalised while in cache
         step = max(1, min(total, self.CHUNK_BYTES // (16 * n * n)))
-        whole = self._store is not None and on_store is not None and on_store.size == self._store._known.size \
-            and np.array_equal(on_store, np.arange(on_store.size))
         if step >= total:  # one chunk: eigh's own arrays are the result (no copy)
-            energies, vectors = self._eigh(flat_k, mesh=self._store.shape if whole else None)
+            energies, vectors = self._eigh(flat_k, mesh=store.shape if whole else None, rows=rows)
         else:
-            energies, vectors = self._eigh_in_chunks(flat_k, step, what)
+            energies, vectors = self._eigh_in_chunks(flat_k, step, what, rows)
+        if rows is not None:
+            energies, vectors = self._with_time_reversed(energies, vectors, rows, sources, total)
+            self.stats.time_reversed += total - rows.size
         if self._gauge_rng is not None:
             vectors *= np.exp(2j * np.pi * self._gauge_rng.random(energies.shape))[:, None, :]
         self.stats.k_points += total
         self.stats.batches.append((what, total))
-        if self._store is not None:  # every point diagonalised on the mesh is found there from now on
-            self._store.record(flat_k, energies, vectors, on_store)
+        if store is not None:  # every point diagonalised on the mesh is found there from now on
+            store.record(flat_k, energies, vectors, on_store)
         return energies.reshape(shape + (n,)), vectors.reshape(shape + (n, n))
 
-    def _eigh(self, kc: np.ndarray, mesh: tuple[int, ...] | None = None) -> tuple[np.ndarray, np.ndarray]:
-        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)``; ``mesh``: the chunk is that
-        whole uniform mesh in C order, so H is built by the model's mesh sum (:meth:`BlochModel.hamiltonian_on_mesh`)."""
+    def _time_reversed_sources(self, flat: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+        """For each point ``flat`` of a new batch on the mesh store, where its partner ``−k`` is: (its row in the
+        batch if it comes earlier there, else −1; its flat index in the store if the store knows it, else −1).
+        A point with neither is diagonalised. None if every point is."""
+        store = self._store
+        partner = store.partner(flat)
+        in_store = np.where(store._known[partner], partner, -1)
+        position = np.full(store._known.size, -1)
+        position[flat] = np.arange(flat.size)
+        earlier = position[partner]
+        in_batch = np.where((in_store < 0) & (earlier >= 0) & (earlier < np.arange(flat.size)), earlier, -1)
+        if (in_store < 0).all() and (in_batch < 0).all():
+            return None
+        return in_batch, in_store
+
+    def _with_time_reversed(self, energies, vectors, rows, sources, total):
+        """The eigensystems of a whole batch from those of its ``rows``, the others by time reversal."""
         n = self.model.n_states
+        in_batch, in_store = sources
+        e = np.empty((total, n))
+        v = np.empty((total, n, n), dtype=complex)
+        e[rows], v[rows] = energies, vectors
+        b = np.flatnonzero(in_batch >= 0)  # the partner is a row diagonalised before it in this batch
+        if b.size:
+            e[b] = e[in_batch[b]]
+            v[b] = self._reverse(v[in_batch[b]])
+        s = np.flatnonzero(in_store >= 0)
+        if s.size:
+            e[s] = self._store._e[in_store[s]]
+            v[s] = self._reverse(self._store._v[in_store[s]])
+        return e, v
+
+    def _eigh(self, kc: np.ndarray, mesh: tuple[int, ...] | None = None, rows: np.ndarray | None = None
+              ) -> tuple[np.ndarray, np.ndarray]:
+        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)`` (only its ``rows``, if given);
+        ``mesh``: the chunk is that whole uniform mesh in C order, so H is built by the model's mesh sum
+        (:meth:`BlochModel.hamiltonian_on_mesh`)."""
+        n = self.model.n_states
+        checked = not getattr(self.model, "hermitian_by_construction", False)
+        points = kc if rows is None or checked else kc[rows]  # H of every point is checked, if it needs checking
         if mesh is not None and hasattr(self.model, "hamiltonian_on_mesh"):
             h = np.asarray(self.model.hamiltonian_on_mesh(mesh))
             if h.shape != tuple(mesh) + (n, n):
                 raise ShapeError(f"H on the mesh {'x'.join(map(str, mesh))} has shape {h.shape}, expected "
                                  f"{tuple(mesh) + (n, n)}")
-            h = h.reshape(-1, n, n)
+            h, points = h.reshape(-1, n, n), kc
         else:
-            h = np.asarray(self.model.hamiltonian(kc))
-        if h.shape != (kc.shape[0], n, n):
-            raise ShapeError(f"H(k) returned shape {h.shape}, expected {(kc.shape[0], n, n)}")
-        if not getattr(self.model, "hermitian_by_construction", False):
-            self._check_hermitian(h, kc)
+            h = np.asarray(self.model.hamiltonian(points))
+        if h.shape != (points.shape[0], n, n):
+            raise ShapeError(f"H(k) returned shape {h.shape}, expected {(points.shape[0], n, n)}")
+        if checked:
+            self._check_hermitian(h, points)
+        if rows is not None and points is kc:
+            h = h[rows]
         return np.linalg.eigh(h)
 
-    def _eigh_in_chunks(self, flat_k: np.ndarray, step: int, what: str) -> tuple[np.ndarray, np.ndarray]:
+    def _eigh_in_chunks(self, flat_k: np.ndarray, step: int, what: str, rows: np.ndarray | None = None
+                        ) -> tuple[np.ndarray, np.ndarray]:
         n = self.model.n_states
-        total = flat_k.shape[0]
+        total = flat_k.shape[0] if rows is None else rows.size
         energies = np.empty((total, n))
         vectors = np.empty((total, n, n), dtype=complex)
-        starts = range(0, total, step)
+        starts = range(0, flat_k.shape[0], step)
         bar = progress_bar(len(starts), f"diagonalising {what}", "chunk",
                            self.progress if len(starts) >= self.PROGRESS_MIN_CHUNKS else False)
+        done = 0
         for start in starts:  # a handful of large batches, not a loop over k-points
-            energies[start:start + step], vectors[start:start + step] = self._eigh(flat_k[start:start + step])
+            chunk = flat_k[start:start + step]
+            if rows is None:
+                part = slice(start, start + chunk.shape[0])
+                energies[part], vectors[part] = self._eigh(chunk)
+            else:
+                mine = rows[(rows >= start) & (rows < start + chunk.shape[0])] - start
+                part = slice(done, done + mine.size)
+                energies[part], vectors[part] = self._eigh(chunk, rows=mine)
+                done += mine.size
             bar.update(1)
         bar.close()
         return energies, vectors

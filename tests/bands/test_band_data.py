@@ -177,3 +177,44 @@ def test_grids_on_a_complete_mesh_give_the_link_determinants_and_gaps_of_their_o
                 got = np.prod(whole.link_determinants(g, axis, embed=embed), axis=axis)
                 assert np.allclose(got, np.prod(alone.link_determinants(g, axis, embed=embed), axis=axis), atol=1e-10)
     assert whole._mesh_minors is not None and whole.stats.k_points == 512
+
+
+@pytest.mark.parametrize("rotated", [False, True])
+def test_states_taken_from_minus_k_by_time_reversal_diagonalise_h_there(rotated):
+    # U_T H(k)* U_T† = H(−k) (docs/conventions.md): U_T V(k)* holds eigenvectors of H(−k) with the energies of k.
+    # Checked against H(−k) itself and numpy.linalg.eigvalsh; a rotated basis makes U_T dense (the matrix-product
+    # path), real orbitals with spin make it one signed entry per row (the gather path)
+    from crystaltop.examples import fu_kane_mele
+
+    model = fu_kane_mele(dt=0.4, frame="bond")
+    if rotated:
+        q = np.linalg.qr(np.random.default_rng(5).normal(size=(4, 4)) + 1j * np.random.default_rng(6).normal(size=(4, 4)))[0]
+        model = model.with_basis(q)
+    bands = BandData(model, filling=2, time_reversal=model.time_reversal_matrix())
+    mesh = uniform_mesh((6, 6, 6))
+    e, v = bands.eigensystem(mesh)
+    assert bands.stats.k_points == 216 and bands.stats.time_reversed == (216 - 8) // 2
+    k = mesh.points.reshape(-1, 3)
+    h = model.hamiltonian(k)
+    e, v = e.reshape(-1, 4), v.reshape(-1, 4, 4)
+    assert np.abs(h @ v - v * e[:, None, :]).max() < 1e-12
+    assert np.allclose(e, np.linalg.eigvalsh(h), atol=1e-12)
+    assert np.allclose(np.conj(np.swapaxes(v, -1, -2)) @ v, np.eye(4), atol=1e-12)
+
+
+def test_points_whose_partner_is_known_take_its_states_in_a_later_batch_too():
+    from crystaltop.examples import fu_kane_mele
+    from crystaltop.kspace import Grid
+
+    model = fu_kane_mele(dt=0.4, frame="bond")
+    bands = BandData(model, filling=2, time_reversal=model.time_reversal_matrix())
+    full = tuple(np.arange(8) / 8)
+    first = Grid((full, tuple(np.arange(5) / 8), (0.0,)), (True, False, False))  # k2 from 0 to 1/2
+    second = Grid((full, (5 / 8, 6 / 8, 7 / 8), (0.0,)), (True, False, False))  # its partners are all in the first
+    bands.eigensystem(first)
+    before = (bands.stats.k_points, bands.stats.time_reversed)
+    e, v = bands.eigensystem(second)
+    assert (bands.stats.k_points, bands.stats.time_reversed) == (before[0] + 24, before[1] + 24)
+    h = model.hamiltonian(second.points).reshape(-1, 4, 4)
+    e, v = e.reshape(-1, 4), v.reshape(-1, 4, 4)
+    assert np.abs(h @ v - v * e[:, None, :]).max() < 1e-12
