@@ -210,8 +210,10 @@ class _MeshStore:
 
 
 def _time_reversal_map(u_t, n: int):
-    """``V ↦ U_T V*`` for stacks of eigenvector matrices ``(m, n, n)``: a gather of rows with a phase each when
-    ``U_T`` has one non-zero entry per row (real orbitals, with or without spin), a matrix product otherwise."""
+    """``(V, src) ↦ U_T V[src]*`` for a stack of eigenvector matrices ``V`` ``(m, n, n)`` and the rows ``src`` to
+    take: when ``U_T`` has one non-zero entry per row (real orbitals, with or without spin), one gather of matrix
+    rows and a phase per row (the arrays are large and memory-bound: few passes over them); a matrix product
+    otherwise."""
     u = np.asarray(u_t, dtype=complex)
     if u.shape != (n, n):
         raise ShapeError(f"the time-reversal matrix has shape {u.shape}, expected {(n, n)}")
@@ -219,14 +221,18 @@ def _time_reversal_map(u_t, n: int):
     if np.all(nonzero.sum(axis=1) == 1):
         cols = np.argmax(nonzero, axis=1)
         phases = u[np.arange(n), cols]
+        flip = np.flatnonzero(phases != 1)
 
-        def reverse(v):
-            out = np.empty_like(v)
-            for i in range(n):  # one row of every matrix at once (n rows of the basis, not k-points)
-                np.multiply(np.conj(v[:, cols[i], :]), phases[i], out=out[:, i, :])
+        def reverse(v, src):
+            # row i of the result is row cols[i] of the source matrix: gathered as rows of the (m n, n) stack
+            rows = (np.asarray(src)[:, None] * n + cols[None, :]).reshape(-1)
+            out = np.take(v.reshape(-1, n), rows, axis=0).reshape(-1, n, n)
+            np.conjugate(out, out=out)
+            for i in flip:  # a few rows of the basis (not k-points), each a plain slice of every matrix
+                out[:, i, :] *= phases[i]
             return out
         return reverse
-    return lambda v: u @ np.conj(v)
+    return lambda v, src: u @ np.conj(v[src])
 
 
 @dataclass
@@ -379,12 +385,15 @@ class BandData:
         e[rows], v[rows] = energies, vectors
         b = np.flatnonzero(in_batch >= 0)  # the partner is a row diagonalised before it in this batch
         if b.size:
-            e[b] = e[in_batch[b]]
-            v[b] = self._reverse(v[in_batch[b]])
+            where = np.empty(total, dtype=int)
+            where[rows] = np.arange(rows.size)
+            src = where[in_batch[b]]  # read from the compact arrays just diagonalised
+            e[b] = energies[src]
+            v[b] = self._reverse(vectors, src)
         s = np.flatnonzero(in_store >= 0)
         if s.size:
             e[s] = self._store._e[in_store[s]]
-            v[s] = self._reverse(self._store._v[in_store[s]])
+            v[s] = self._reverse(self._store._v, in_store[s])
         return e, v
 
     def _eigh(self, kc: np.ndarray, mesh: tuple[int, ...] | None = None, rows: np.ndarray | None = None
