@@ -450,6 +450,8 @@ class BandData:
         flat = h.reshape(-1, n, n)
         # one pass over the batch; the worst k-point is named
         dev_all = np.abs(flat - np.conj(np.swapaxes(flat, -1, -2))).max(axis=(-1, -2))
+        if dev_all.max(initial=0.0) <= self.herm_tol:  # the scale is at least 1: every point passes
+            return
         scale = np.maximum(np.abs(flat).max(axis=(-1, -2)), 1.0)
         rel = dev_all / scale
         bad = int(np.argmax(rel))
