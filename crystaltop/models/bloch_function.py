@@ -18,7 +18,7 @@ from ..errors import CrystaltopError, NonHermitianError, ShapeError, UnknownOper
 from ..symmetry import PointGroup
 from ..symmetry import time_reversal_matrix as _standard_time_reversal
 from .base import BlochModel, _as_unitary, as_lattice
-from .phases import bloch_sum
+from .phases import bloch_sum, mesh_sum
 
 __all__ = ["BlochFunction"]
 
@@ -166,6 +166,7 @@ class BlochFunction(BlochModel):
 
         model = cls(h, lattice=lat, positions=positions, **options)
         model._blocks = (c, b)
+        model.hermitian_by_construction = True  # h(−R) = h(R)† was checked above
         return model
 
     # ------------------------------------------------------------------ interface
@@ -205,6 +206,12 @@ class BlochFunction(BlochModel):
             raise ShapeError(f"the callable H(k) returned shape {out.shape} for k of shape {k.shape}; expected "
                              f"(..., n, n) = {expected} with n = {self.n_states} basis states")
         return out.astype(complex, copy=False)
+
+    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
+        blocks = getattr(self, "_blocks", None)
+        if blocks is None:  # a callable: evaluated at the mesh points
+            return super()._hamiltonian_on_mesh(shape)
+        return mesh_sum(shape, *blocks)
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:
         word = self._word_for(op)

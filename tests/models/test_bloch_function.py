@@ -177,3 +177,18 @@ def test_a_spinful_model_given_only_generators_reproduces_every_matrix_of_the_bu
     ks = np.random.default_rng(6).random((3, 2))
     for op in group:
         assert np.allclose(f.symmetry_matrix(op, ks), model.symmetry_matrix(op, ks)), op.label
+
+
+def test_on_a_mesh_a_real_space_form_is_summed_per_axis_and_a_callable_is_evaluated_at_the_points():
+    cells = [(0, 0), (1, 0), (-1, 0), (0, 1), (0, -1)]
+    hop_x, hop_y = (SZ - 1j * SX) / 2, (SZ - 1j * SY) / 2
+    blocks = [0.5 * SZ, hop_x, hop_x.conj().T, hop_y, hop_y.conj().T]
+    summed = BlochFunction.from_real_space(cells, blocks, lattice=np.eye(2), positions=np.zeros((2, 2)))
+    bare = BlochFunction(lambda k: two_band(k, 0.5), lattice=np.eye(2), positions=np.zeros((2, 2)))
+    axes = np.meshgrid(np.arange(5) / 5, np.arange(3) / 3, indexing="ij")
+    points = np.stack(axes, axis=-1)
+    # the blocks are the Qi–Wu–Zhang form at m = 0.5 (Phys. Rev. B 74, 085308 (2006)), as two_band writes it
+    for model in (summed, bare):
+        assert np.allclose(model.hamiltonian_on_mesh((5, 3)), two_band(points, 0.5), atol=1e-12)
+    # h(−R) = h(R)† is checked when the blocks are given: no Hermiticity test of every H(k) is needed after that
+    assert getattr(summed, "hermitian_by_construction", False) and not getattr(bare, "hermitian_by_construction", False)
