@@ -492,14 +492,22 @@ def stacked_layers(layer: BlochModel, tz: float = 0.1, *, spacing: float = 1.0, 
     if group is None:
         raise CrystaltopError("stacking a BlochFunction needs its group (BlochFunction(..., group=...))")
 
-    def h(k):
-        return layer.hamiltonian(k[..., :2]) + (2.0 * tz * np.cos(2.0 * np.pi * k[..., 2]))[..., None, None] * np.eye(
-            layer.n_states)
-
     reps = {op: (lambda k, _op=op: layer.symmetry_matrix(_op, k[..., :2])) for op in group.operations}
     positions = np.concatenate([layer.positions, np.zeros((layer.n_states, 1))], axis=1)
-    return BlochFunction(h, lattice=lattice, positions=positions, spinful=layer.spinful, representations=reps,
-                         group=group, time_reversal=layer.time_reversal_matrix(), basis=layer.basis, name=label)
+    options = dict(spinful=layer.spinful, representations=reps, group=group, time_reversal=layer.time_reversal_matrix(),
+                   basis=layer.basis, name=label)
+    try:
+        cells, blocks = layer.real_space_blocks()
+    except CrystaltopError:  # a bare callable: stacked as one
+        def h(k):
+            return layer.hamiltonian(k[..., :2]) + (2.0 * tz * np.cos(2.0 * np.pi * k[..., 2]))[..., None, None] \
+                * np.eye(layer.n_states)
+        return BlochFunction(h, lattice=lattice, positions=positions, **options)
+    # the real-space form of the layer, each vector in the plane z = 0, and the hop t_z to the next layer and back
+    n = layer.n_states
+    cells = np.concatenate([np.pad(np.asarray(cells), ((0, 0), (0, 1))), [[0, 0, 1], [0, 0, -1]]])
+    blocks = np.concatenate([np.asarray(blocks, dtype=complex), np.broadcast_to(tz * np.eye(n), (2, n, n))])
+    return BlochFunction.from_real_space(cells, blocks, lattice=lattice, positions=positions, **options)
 
 
 # ---------------------------------------------------------------------------------------------- the catalogue
