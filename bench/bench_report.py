@@ -25,10 +25,22 @@ import numpy as np
 import crystaltop as ct
 from crystaltop.examples import bernevig_hughes_zhang, fu_kane_mele, kane_mele, stacked_layers
 from crystaltop.examples.constructions import multilayer_stack
+from crystaltop.models import BlochFunction
+
+def callable_stacked_bhz():
+    """The stacked BHZ layers as a bare Python callable H(k) with callable representations: no real-space form, so
+    H(k) is evaluated point by point and its Hermiticity is checked at every point."""
+    model = stacked_layers(bernevig_hughes_zhang(m=2.0), 0.1)
+    reps = {op: (lambda k, op=op: model.symmetry_matrix(op, k)) for op in model.group.operations}
+    return BlochFunction(lambda k: model.hamiltonian(k), lattice=model.lattice, positions=model.positions,
+                         spinful=model.spinful, representations=reps, group=model.group,
+                         time_reversal=model.time_reversal_matrix(), name="stacked BHZ, callable")
+
 
 CASES = {
     "Fu-Kane-Mele diamond (3D, 4 states)": (lambda: fu_kane_mele(dt=0.4, frame="bond"), "-3m", 2),
     "stacked BHZ layers (3D, 4 states)": (lambda: stacked_layers(bernevig_hughes_zhang(m=2.0), 0.1), "4/mmm", 2),
+    "stacked BHZ, a callable H(k) (3D)": (callable_stacked_bhz, "4/mmm", 2),
     "Kane-Mele (2D, 4 states)": (lambda: kane_mele(), "6/mmm", 2),
 }
 
