@@ -224,10 +224,13 @@ class MirrorChern(Invariant):
         if dim == 2:
             pts = uniform_mesh((n, n)).points
             return pts if axes == (0, 1) else np.swapaxes(pts, 0, 1)
-        if axes is not None:
-            fixed = 3 - axes[0] - axes[1]
-            pts = np.squeeze(plane(3, fixed, pl.level, (n, n)).points, axis=fixed)
-            return np.swapaxes(pts, 0, 1) if axes[0] > axes[1] else pts
+        if axes is not None:  # the points of plane(3, fixed, level, (n, n)), the two in-plane axes in pl's order
+            pts = np.empty((n, n, 3))
+            step = np.arange(n) / n
+            pts[..., axes[0]] = step[:, None]
+            pts[..., axes[1]] = step[None, :]
+            pts[..., 3 - axes[0] - axes[1]] = np.mod(pl.level, 1.0)
+            return pts
         return pl.points(n)
 
     # ------------------------------------------------------------------ one plane
