@@ -8,6 +8,7 @@ cache, never diagonalised again; :attr:`BandData.stats` records what was diagona
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -109,7 +110,6 @@ class _MeshStore:
         self._strides = np.array([int(np.prod(shape[i + 1:])) for i in range(len(shape))])
         self._indices: dict[Grid, np.ndarray | None] = {}
         self._full = False  # every point known (points are never forgotten)
-        self._partners: np.ndarray | None = None  # flat index of −k for every flat index k
 
     def grid_index(self, grid: Grid) -> np.ndarray | None:
         """The flat index in the mesh of every point of ``grid`` (shape ``grid.shape``), or None if some point is
@@ -186,10 +186,7 @@ class _MeshStore:
 
     def partner(self, flat: np.ndarray) -> np.ndarray:
         """The flat index of ``−k`` for each point ``k`` of ``flat`` (the mesh is closed under k -> −k)."""
-        if self._partners is None:
-            j = np.indices(self.shape).reshape(len(self.shape), -1)
-            self._partners = np.ravel_multi_index(tuple((-j) % np.array(self.shape)[:, None]), self.shape)
-        return self._partners[flat]
+        return _partners(self.shape)[flat]
 
     def holds_all(self, flat: np.ndarray) -> bool:
         """Whether every point of ``flat`` is known (once the whole mesh is, without looking)."""
@@ -207,6 +204,15 @@ class _MeshStore:
         on = np.zeros(k.shape[0], dtype=bool)
         on[self.point_index(k)[0]] = True
         return on
+
+
+@lru_cache(maxsize=16)
+def _partners(shape: tuple[int, ...]) -> np.ndarray:
+    """The flat index of ``−k`` for every flat index ``k`` of the mesh ``shape`` (read-only, shared by reports)."""
+    j = np.indices(shape).reshape(len(shape), -1)
+    out = np.ravel_multi_index(tuple((-j) % np.array(shape)[:, None]), shape)
+    out.setflags(write=False)
+    return out
 
 
 def _time_reversal_map(u_t, n: int):
