@@ -328,6 +328,9 @@ class DeferredMapping(Mapping):
     def __repr__(self) -> str:
         return repr(dict(self))
 
+    def __reduce__(self):
+        return (dict, (dict(self),))  # pickled as the plain dict it reads as (its maker need not pickle)
+
 
 def trim_label(k) -> str:
     """A time-reversal-invariant momentum in reduced coordinates as text, e.g. ``'(0, 1/2, 1/2)'``."""

@@ -171,6 +171,12 @@ class Report:
         object.__setattr__(self, "model", MappingProxyType(dict(self.model)))
         object.__setattr__(self, "checks", MappingProxyType(dict(self.checks)))
 
+    def __reduce__(self):
+        # read-only views do not pickle: a report is rebuilt from plain copies (to send it to another process,
+        # or to keep it on disk)
+        return (Report, (dict(self.model), dict(self.checks), dict(self.results), dict(self.band_stats),
+                         dict(self.figures), self.verification))
+
     def __getitem__(self, name: str) -> Result:
         try:
             return self.results[name]

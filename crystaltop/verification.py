@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from functools import partial
 from typing import Any, Callable
 
 import numpy as np
@@ -115,20 +116,21 @@ def _net_charge_per_ion(sample, density) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _map(positions, values, mark, title, label):
-    """A drawing function: ``values`` at ``positions`` on a diverging colour scale, cores marked."""
+    """A drawing function: ``values`` at ``positions`` on a diverging colour scale, cores marked (a partial of
+    :func:`_draw_map`, so that a report holding it can be pickled)."""
     positions = np.asarray(positions, dtype=float)[:, :2]
     values = np.asarray(values, dtype=float)
     mark = np.asarray(mark, dtype=float).reshape(-1, 2)
+    return partial(_draw_map, positions, values, mark, title, label)
 
-    def draw(ax):
-        lim = float(np.max(np.abs(values))) or 1.0
-        art = ax.scatter(positions[:, 0], positions[:, 1], c=values, s=12, cmap="RdBu_r", vmin=-lim, vmax=lim)
-        ax.scatter(mark[:, 0], mark[:, 1], marker="x", c="k", s=40)
-        ax.set_aspect("equal")
-        ax.set_title(title, fontsize=9)
-        ax.figure.colorbar(art, ax=ax, label=label)
 
-    return draw
+def _draw_map(positions, values, mark, title, label, ax) -> None:
+    lim = float(np.max(np.abs(values))) or 1.0
+    art = ax.scatter(positions[:, 0], positions[:, 1], c=values, s=12, cmap="RdBu_r", vmin=-lim, vmax=lim)
+    ax.scatter(mark[:, 0], mark[:, 1], marker="x", c="k", s=40)
+    ax.set_aspect("equal")
+    ax.set_title(title, fontsize=9)
+    ax.figure.colorbar(art, ax=ax, label=label)
 
 
 def _charge_figure(sample, cache, title):

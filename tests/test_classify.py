@@ -150,3 +150,16 @@ def test_taking_the_states_at_minus_k_by_time_reversal_changes_no_value_status_o
         assert halved.band_stats["k_points"] == whole.band_stats["k_points"]
         if i == 0:  # the gapped point: its meshes are (about) halved
             assert halved.band_stats["time_reversed"] > 0.3 * halved.band_stats["k_points"]
+
+
+def test_a_report_survives_pickling_with_its_lazy_details_and_figures(tmp_path):
+    # to another process (an executor) or to disk: the read-only views, z2's lazily made texts and its figure
+    # functions all pickle, and the copy reads and renders as the original
+    import pickle
+
+    report = ct.classify(kane_mele(), group="6/mmm", filling=2)
+    copy = pickle.loads(pickle.dumps(report))
+    assert copy.to_dict() == report.to_dict() and str(copy) == str(report)
+    assert copy["z2"].value == report["z2"].value == 1 and copy["z2"].figures.keys() == report["z2"].figures.keys()
+    pytest.importorskip("matplotlib")
+    assert sorted(copy.save_figures(tmp_path)) == [f"z2/{name}" for name in sorted(report["z2"].figures)]

@@ -164,3 +164,11 @@ def test_a_flake_whose_cells_are_not_symmetric_about_its_centre_gives_no_corner_
                                invariants=["corner_charge"], sizes={"flake": 12})
     corners = [c for c in report.verification if c.prediction == "corner_charge"]
     assert corners and all(c.agree is None and "not C4-symmetric" in c.measured for c in corners)
+
+
+def test_a_verified_report_survives_pickling_with_its_charge_maps(c4_obstructed):
+    import pickle
+
+    copy = pickle.loads(pickle.dumps(c4_obstructed))
+    assert copy.to_json() == c4_obstructed.to_json()
+    assert [sorted(c.figures) for c in copy.verification] == [sorted(c.figures) for c in c4_obstructed.verification]

@@ -25,6 +25,8 @@ half mesh. Every TRIM is a point of these half planes, so the parity plugins fin
 
 from __future__ import annotations
 
+from functools import partial
+
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, GapClosedError, MeshTooCoarseError
@@ -208,21 +210,22 @@ def flow_text(spec: dict, flow: dict) -> str:
 
 
 def flow_figure(spec: dict, flow: dict):
-    """A function drawing the flow of one plane on a matplotlib Axes."""
-    pump, x, z = flow["pump"].copy(), flow["centres"].copy(), flow["midpoints"].copy()
-    p, loop = spec["pump"] + 1, spec["loop"] + 1
+    """A function drawing the flow of one plane on a matplotlib Axes (a partial of :func:`draw_flow`, so that a
+    report holding it can be pickled)."""
+    return partial(draw_flow, flow["pump"].copy(), flow["centres"].copy(), flow["midpoints"].copy(),
+                   spec["pump"] + 1, spec["loop"] + 1, spec["label"], flow["z2"])
 
-    def draw(ax):
-        ax.plot(np.repeat(pump, x.shape[1]), x.ravel(), ".", ms=3, color="tab:blue", label="Wannier centres")
-        ax.plot(pump, z, "x", ms=3, color="tab:red", label="largest-gap midpoint")
-        ax.set_xlim(0.0, 0.5)
-        ax.set_ylim(0.0, 1.0)
-        ax.set_xlabel(f"k{p} (reduced)")
-        ax.set_ylabel(f"centre along a{loop} (reduced)")
-        ax.set_title(f"{spec['label']}: Z2 = {flow['z2']}")
-        ax.legend(loc="upper right", fontsize="x-small")
 
-    return draw
+def draw_flow(pump, x, z, p, loop, label, z2, ax) -> None:
+    """The Wannier-centre flow of one plane (centres, and the largest-gap midpoint) on ``ax``."""
+    ax.plot(np.repeat(pump, x.shape[1]), x.ravel(), ".", ms=3, color="tab:blue", label="Wannier centres")
+    ax.plot(pump, z, "x", ms=3, color="tab:red", label="largest-gap midpoint")
+    ax.set_xlim(0.0, 0.5)
+    ax.set_ylim(0.0, 1.0)
+    ax.set_xlabel(f"k{p} (reduced)")
+    ax.set_ylabel(f"centre along a{loop} (reduced)")
+    ax.set_title(f"{label}: Z2 = {z2}")
+    ax.legend(loc="upper right", fontsize="x-small")
 
 
 # ---------------------------------------------------------------------------------------------- the plugin
