@@ -95,9 +95,6 @@ class Rotation:
         m = int(m) % self.fold
         return np.linalg.matrix_power(self.w, m)
 
-    def cartesian_power(self, m: int) -> np.ndarray:
-        return np.linalg.matrix_power(self.cartesian, int(m) % self.fold)
-
 
 def apply_isometry(rot: Rotation | None, power: np.ndarray, shift: np.ndarray, reduced: np.ndarray) -> np.ndarray:
     """``W^m (f − c) + c + τ`` for rows ``f`` (vectorised over entries with their own ``m`` and ``τ``)."""

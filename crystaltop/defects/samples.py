@@ -152,12 +152,6 @@ class Sample:
         out[ok] = share[self.state_ion[ok]]
         return out
 
-    @property
-    def orphan_charge(self) -> float:
-        """Charge of the ions no state is counted with (at an open boundary; 0 inside a sample)."""
-        counts = np.bincount(self.state_ion[self.state_ion >= 0], minlength=len(self.ion_charges))
-        return float(self.ion_charges[counts == 0].sum())
-
     def boundary(self, width: float = 2.0) -> np.ndarray:
         """(n,) bool: states within ``width`` of the open boundary."""
         return self.edge_distance < width
