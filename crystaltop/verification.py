@@ -94,12 +94,18 @@ def _states(sample, cache, count):
     return cache["states"]
 
 
+#: largest sample (states) whose exact occupied density is formed once and shared by every core's charge and the
+#: charge map; above the solvers' own DENSE_LIMIT on purpose (one dense eigh of 4000 states takes a few seconds,
+#: against one Chebyshev estimate per core); beyond it each core's charge is left to the solvers' choice
+SHARED_DENSITY_LIMIT = 4000
+
+
 def _charge(sample, cache, core=0):
     from .defects import bound_charge, occupied_density
 
     key = ("charge", core)
     if key not in cache:
-        if "density" not in cache and sample.n_states <= 4000:
+        if "density" not in cache and sample.n_states <= SHARED_DENSITY_LIMIT:
             cache["density"] = occupied_density(sample, method="exact")
         cache[key] = bound_charge(sample, core, density=cache.get("density"))
     return cache[key]
