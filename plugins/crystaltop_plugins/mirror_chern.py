@@ -33,27 +33,10 @@ CONVERGED = 0.35
 TEO_FU_KANE = "Teo, Fu, Kane, PRB 78, 045426 (2008)"
 
 
-def fhs_chern(states: np.ndarray) -> tuple[int, float, float]:
-    """Chern number (Berry convention) of the span of ``states`` (n1, n2, N, m) on a periodic mesh, FHS.
-
-    Returns the integer, its distance from the raw sum and the largest plaquette phase / π.
-    """
-    if states.shape[-1] == 0:
-        return 0, 0.0, 0.0
-    minors = link_minors(states)  # shared by the links along both axes
-
-    def link(axis):
-        u = link_determinants(states, axis, minors=minors)
-        return u / np.abs(u)
-    u1, u2 = link(0), link(1)
-    f = np.angle(u1 * np.roll(u2, -1, axis=0) * np.conj(np.roll(u1, -1, axis=1)) * np.conj(u2))
-    raw = -float(f.sum()) / (2 * np.pi)  # the literal FHS sum is −C (docs/conventions.md)
-    return int(round(raw)), abs(raw - round(raw)), float(np.abs(f).max() / np.pi)
-
-
 def fhs_cherns(states: np.ndarray) -> tuple[list, list, list]:
-    """:func:`fhs_chern` of a stack of planes ``(planes, n1, n2, N, m)``: per plane the integer, its distance
-    from the raw sum and the largest plaquette phase / π."""
+    """Chern number (Berry convention) of the span of ``states`` on each of a stack of periodic plane meshes
+    ``(planes, n1, n2, N, m)`` by the Fukui–Hatsugai–Suzuki method: per plane the integer, its distance from the
+    raw sum and the largest plaquette phase / π."""
     count = states.shape[0]
     if states.shape[-1] == 0:
         return [0] * count, [0.0] * count, [0.0] * count
@@ -64,7 +47,7 @@ def fhs_cherns(states: np.ndarray) -> tuple[list, list, list]:
         return u / np.abs(u)
     u1, u2 = link(1), link(2)
     f = np.angle(u1 * np.roll(u2, -1, axis=1) * np.conj(np.roll(u1, -1, axis=2)) * np.conj(u2))
-    raw = [-float(fi.sum()) / (2 * np.pi) for fi in f]  # each plane summed as fhs_chern sums it
+    raw = [-float(fi.sum()) / (2 * np.pi) for fi in f]  # the literal FHS sum is −C (docs/conventions.md)
     return ([int(round(r)) for r in raw], [abs(r - round(r)) for r in raw],
             [float(np.abs(fi).max() / np.pi) for fi in f])
 
@@ -182,27 +165,51 @@ class MirrorChern(Invariant):
                 first += count
         except Exception:  # met again, for the plane concerned, by the loop over the planes
             return {}
+        found = self._sector_cherns(planes, occ, d, pts, n, strict=False)
+        return {} if found is None else {(op.label, pl.name): r for (op, pl), r in zip(planes, found)}
+
+    def _sector_cherns(self, planes, occ, d, pts, n, *, strict: bool) -> list | None:
+        """The mirror sectors and their Chern numbers on a stack of planes: occupied states ``occ``
+        ``(planes, n, n, N, m)``, mirror matrices ``d`` ``(planes, n, n, N, N)`` and momenta ``pts``; one result
+        dict per plane. A failed check raises the error naming the plane (``strict``, one plane) or gives None."""
         s = np.conj(np.swapaxes(occ, -1, -2)) @ d @ occ
-        m = s.shape[-1]
-        if np.abs(np.conj(np.swapaxes(s, -1, -2)) @ s - np.eye(m)).max() > 1e-6:
-            return {}
-        square = np.einsum("...ii->...", s @ s).reshape(len(planes), -1) / m
+        m, count = s.shape[-1], len(planes)
+        dev = np.abs(np.conj(np.swapaxes(s, -1, -2)) @ s - np.eye(m)).reshape(count, -1).max(axis=1)
+        if dev.max() > 1e-6:
+            if not strict:
+                return None
+            op, pl = planes[0]
+            raise SymmetryBreakingError(
+                f"mirror {op.label} does not map the occupied states of its plane {pl.name} onto themselves "
+                f"(deviation {dev[0]:.1e}): the model breaks it, or bands are degenerate across the filling there")
+        square = np.einsum("...ii->...", s @ s).reshape(count, -1) / m
         mean = square.mean(axis=1)
-        # as in _plane, per plane: all +1 (spinless) or all −1 (spin ½)
+        # per plane, as np.allclose(square, ±1, atol=1e-6) (rtol 1e-5) in one pass: all +1 (spinless) or all −1
         plus_one = (np.abs(mean - 1) < 1e-6) & (np.abs(square - 1).max(axis=1) <= 1e-6 + 1e-5)
         minus_one = (np.abs(mean + 1) < 1e-6) & (np.abs(square + 1).max(axis=1) <= 1e-6 + 1e-5)
         if not np.all(plus_one | minus_one):
-            return {}
-        lam0 = np.where(plus_one, 1.0 + 0j, 1j)
-        a = s / lam0.reshape(-1, 1, 1, 1, 1)
+            if not strict:
+                return None
+            raise SymmetryBreakingError(f"mirror {planes[0][0].label} squares to {complex(mean[0]):.3f}, not ±1, "
+                                        "on the occupied states")
+        names = [("+1", "-1") if p else ("+i", "-i") for p in plus_one]
+        a = s / np.where(plus_one, 1.0 + 0j, 1j).reshape(-1, 1, 1, 1, 1)
         a = 0.5 * (a + np.conj(np.swapaxes(a, -1, -2)))
-        w, u = hermitian_eigh(a)
+        w, u = hermitian_eigh(a)  # closed form for two occupied states (one Kramers pair, the common case)
         n_minus = np.count_nonzero(w < 0, axis=-1)
         if n_minus.min() != n_minus.max():
-            return {}
+            if not strict:
+                return None
+            op, pl = planes[0]
+            lo = np.unravel_index(int(np.argmin(n_minus[0])), n_minus.shape[1:])
+            hi = np.unravel_index(int(np.argmax(n_minus[0])), n_minus.shape[1:])
+            raise CrystaltopError(
+                f"the number of occupied states of mirror eigenvalue {names[0][1]} changes across the plane {pl.name} "
+                f"of {op.label} (from {n_minus[0][lo]} at k={_k_text(pts[0][lo])} to {n_minus[0][hi]} at "
+                f"k={_k_text(pts[0][hi])}): bands of the two mirror sectors cross at the filling, the gap closes "
+                "between these mesh points")
         k = int(n_minus.flat[0])
         minus, plus = occ @ u[..., :k], occ @ u[..., k:]
-        count = len(planes)
         if k == m - k:  # sectors of one size: both in one stacked sum
             c, e, f = fhs_cherns(np.concatenate([plus, minus]))
             c_plus, e1, f1, c_minus, e2, f2 = c[:count], e[:count], f[:count], c[count:], e[count:], f[count:]
@@ -210,12 +217,9 @@ class MirrorChern(Invariant):
             c_plus, e1, f1 = fhs_cherns(plus)
             c_minus, e2, f2 = fhs_cherns(minus)
         total, _, f3 = fhs_cherns(occ)
-        return {(op.label, pl.name): {
-                    "C+": c_plus[i], "C-": c_minus[i], "total": total[i],
-                    "sector_eigenvalues": ("+1", "-1") if plus_one[i] else ("+i", "-i"),
-                    "sector_sizes": (m - k, k), "mesh": f"{n}x{n}", "integer_deviation": max(e1[i], e2[i]),
-                    "largest_plaquette_phase": max(f1[i], f2[i], f3[i])}
-                for i, (op, pl) in enumerate(planes)}
+        return [{"C+": c_plus[i], "C-": c_minus[i], "total": total[i], "sector_eigenvalues": names[i],
+                 "sector_sizes": (m - k, k), "mesh": f"{n}x{n}", "integer_deviation": max(e1[i], e2[i]),
+                 "largest_plaquette_phase": max(f1[i], f2[i], f3[i])} for i in range(count)]
 
     @staticmethod
     def _plane_points(context, pl, n) -> np.ndarray:
@@ -260,41 +264,7 @@ class MirrorChern(Invariant):
     def _plane(self, context, op, pl, n) -> dict:
         occ, pts = self._occupied_on_plane(context, pl, n)
         d = np.asarray(context.model.symmetry_matrix(op, pts))
-        s = np.conj(np.swapaxes(occ, -1, -2)) @ d @ occ
-        m = s.shape[-1]
-        dev = float(np.abs(np.conj(np.swapaxes(s, -1, -2)) @ s - np.eye(m)).max())
-        if dev > 1e-6:
-            raise SymmetryBreakingError(
-                f"mirror {op.label} does not map the occupied states of its plane {pl.name} onto themselves "
-                f"(deviation {dev:.1e}): the model breaks it, or bands are degenerate across the filling there")
-        square = np.einsum("...ii->...", s @ s) / m
-        c = complex(np.mean(square))
-        # as np.allclose(square, ±1, atol=1e-6) (rtol 1e-5), in one pass
-        if abs(c - 1) < 1e-6 and np.abs(square - 1).max() <= 1e-6 + 1e-5:
-            lam0, names = 1.0, ("+1", "-1")
-        elif abs(c + 1) < 1e-6 and np.abs(square + 1).max() <= 1e-6 + 1e-5:
-            lam0, names = 1j, ("+i", "-i")
-        else:
-            raise SymmetryBreakingError(f"mirror {op.label} squares to {c:.3f}, not ±1, on the occupied states")
-        a = s / lam0
-        a = 0.5 * (a + np.conj(np.swapaxes(a, -1, -2)))
-        w, u = hermitian_eigh(a)  # closed form for two occupied states (one Kramers pair, the common case)
-        n_minus = np.count_nonzero(w < 0, axis=-1)
-        if n_minus.min() != n_minus.max():
-            lo = np.unravel_index(int(np.argmin(n_minus)), n_minus.shape)
-            hi = np.unravel_index(int(np.argmax(n_minus)), n_minus.shape)
-            raise CrystaltopError(
-                f"the number of occupied states of mirror eigenvalue {names[1]} changes across the plane {pl.name} of "
-                f"{op.label} (from {n_minus[lo]} at k={_k_text(pts[lo])} to {n_minus[hi]} at k={_k_text(pts[hi])}): "
-                "bands of the two mirror sectors cross at the filling, the gap closes between these mesh points")
-        k = int(n_minus.flat[0])
-        minus, plus = occ @ u[..., :k], occ @ u[..., k:]
-        c_plus, e1, f1 = fhs_chern(plus)
-        c_minus, e2, f2 = fhs_chern(minus)
-        total, _, f3 = fhs_chern(occ)
-        return {"C+": c_plus, "C-": c_minus, "total": total, "sector_eigenvalues": names,
-                "sector_sizes": (m - k, k), "mesh": f"{n}x{n}", "integer_deviation": max(e1, e2),
-                "largest_plaquette_phase": max(f1, f2, f3)}
+        return self._sector_cherns([(op, pl)], occ[None], d[None], pts[None], n, strict=True)[0]
 
     @staticmethod
     def _reference_chern(context, chern, pl):

@@ -97,3 +97,35 @@ def test_the_two_mirror_sectors_add_up_to_the_chern_number_of_the_plane(seed, sp
         return  # gap too small for the meshes allowed
     assert res.value["mz"]["C+"] + res.value["mz"]["C-"] == chern.value
     assert res.cross_checks[0].agree
+
+
+def _sector_case(d_of_points):
+    """One 4 x 4 plane whose occupied state is the first basis state, with mirror matrices d_of_points(i, j)."""
+    from types import SimpleNamespace
+
+    occ = np.zeros((1, 4, 4, 2, 1), dtype=complex)
+    occ[..., 0, 0] = 1.0
+    d = np.array([[d_of_points(i, j) for j in range(4)] for i in range(4)], dtype=complex)[None]
+    pts = np.zeros((1, 4, 4, 3))
+    pts[0, ..., 0], pts[0, ..., 1] = np.arange(4)[:, None] / 4, np.arange(4)[None, :] / 4
+    plane = SimpleNamespace(name="0")
+    return [(SimpleNamespace(label="mz"), plane)], occ, d, pts
+
+
+@pytest.mark.parametrize("d_of_points, error, text", [
+    # σx takes the occupied state to the empty one: the occupied space is not invariant
+    (lambda i, j: [[0, 1], [1, 0]], "SymmetryBreakingError", "does not map the occupied states of its plane 0"),
+    # a phase e^{iπ/3}: its square is neither +1 nor −1
+    (lambda i, j: np.diag([np.exp(1j * np.pi / 3), 1.0]), "SymmetryBreakingError", "squares to"),
+    # the occupied state is mirror-even on half the plane and mirror-odd on the other half
+    (lambda i, j: np.diag([1.0 if i < 2 else -1.0, 1.0]), "CrystaltopError", "changes across the plane 0 of mz"),
+])
+def test_each_check_of_the_mirror_sectors_names_its_cause_or_sends_the_planes_one_by_one(d_of_points, error, text):
+    from crystaltop_plugins.mirror_chern import MirrorChern
+
+    planes, occ, d, pts = _sector_case(d_of_points)
+    plugin = MirrorChern()
+    assert plugin._sector_cherns(planes, occ, d, pts, 4, strict=False) is None  # the stacked pass gives up
+    with pytest.raises(Exception, match=text) as info:
+        plugin._sector_cherns(planes, occ, d, pts, 4, strict=True)
+    assert type(info.value).__name__ == error and "\n" not in str(info.value)
