@@ -6,7 +6,8 @@ Wilson loops along one axis, x = −arg λ / 2π) are Kramers-degenerate at k_p 
 number of times the centres cross a line that runs through the largest gap between them as k_p goes from 0 to 1/2
 (the pumping direction). Between two pumping steps k_j and k_{j+1} the midpoint z of the largest gap moves from z_j
 to z_{j+1}; the centres x_n(k_{j+1}) lying on the arc from z_j to z_{j+1} are the crossings of that step (Soluyanov
-& Vanderbilt, §IV; the count does not depend on the arc's orientation because the number of centres is even).
+& Vanderbilt, §IV; the parity does not depend on the arc's orientation because the number of centres is even, and
+the shorter arc is taken so that the count itself does not depend on rounding).
 
 The count is exact when no centre comes close to z_j within the step. Robustness is by refinement: a step is
 halved wherever a centre at k_{j+1} lies closer to z_j than ``GAP_CHECK`` times the half-gap at k_j, or the set of
@@ -125,10 +126,16 @@ def largest_gap(x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def step_crossings(z: np.ndarray, x: np.ndarray) -> np.ndarray:
-    """Per step j: number of centres x(k_{j+1}) on the counter-clockwise arc from z_j to z_{j+1}."""
+    """Per step j: number of centres x(k_{j+1}) on the shorter arc between z_j and z_{j+1}.
+
+    Either arc gives the same parity (the number of centres is even), so Z2 does not depend on the choice; the
+    shorter one makes the count itself stable: a midpoint that stays put up to rounding (the arc 1e-16 one way or
+    1 − 1e-16 the other) is crossed 0 times, not by every centre.
+    """
     arc = np.mod(z[..., 1:] - z[..., :-1], 1.0)
-    rel = np.mod(x[..., 1:, :] - z[..., :-1, None], 1.0)
-    return np.sum(rel < arc[..., None], axis=-1)
+    ahead = np.sum(np.mod(x[..., 1:, :] - z[..., :-1, None], 1.0) < arc[..., None], axis=-1)
+    behind = np.sum(np.mod(z[..., :-1, None] - x[..., 1:, :], 1.0) < (1.0 - arc)[..., None], axis=-1)
+    return np.where(arc <= 0.5, ahead, behind)
 
 
 def step_checks(z: np.ndarray, size: np.ndarray, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -160,3 +160,31 @@ def test_the_planes_of_chern_and_z2_are_diagonalised_in_one_planned_batch_each_p
 def test_in_two_dimensions_the_half_zone_is_sliced_from_the_chern_mesh():
     report = ct.classify(kane_mele(), group="6/mmm", filling=2, invariants=["chern", "z2"])
     assert report.band_stats["k_points"] == 48 * 48
+
+
+def test_the_crossing_count_is_that_of_the_shorter_arc_and_keeps_the_parity():
+    # Soluyanov & Vanderbilt (PRB 83, 235401 (2011)), §IV: either arc between the largest-gap midpoints of two steps
+    # gives the same parity for an even number of centres; the shorter one does not jump with rounding
+    from crystaltop_plugins.z2 import step_crossings
+
+    rng = np.random.default_rng(4)
+    for _ in range(200):
+        z = rng.random((3, 2))
+        x = np.sort(rng.random((3, 2, 4)), axis=-1)
+        arc = np.mod(z[:, 1] - z[:, 0], 1.0)
+        ahead = np.sum(np.mod(x[:, 1] - z[:, :1], 1.0) < arc[:, None], axis=-1)  # counter-clockwise, every time
+        got = step_crossings(z, x)[:, 0]
+        assert np.array_equal(got % 2, ahead % 2)
+        assert np.all(got <= 4)
+    # a midpoint that does not move (up to 1e-16 either way) is crossed by no centre
+    x = np.array([[[0.1, 0.2, 0.6, 0.7], [0.1, 0.2, 0.6, 0.7]]])
+    for eps in (1e-16, -1e-16):
+        assert step_crossings(np.array([[0.4, 0.4 + eps]]), x)[0, 0] == 0
+
+
+def test_the_flow_details_are_the_same_in_every_gauge():
+    # the Wannier centres are gauge invariant, and so is the count of crossings of the shorter arcs
+    model = fu_kane_mele(dt=0.4, frame="bond")
+    reports = [ct.classify(model, group="-3m", filling=2, invariants=["z2"], gauge_seed=seed) for seed in (None, 1, 2)]
+    counts = [r["z2"].details["crossings"] for r in reports]
+    assert counts[0] == counts[1] == counts[2]
