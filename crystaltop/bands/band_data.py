@@ -350,12 +350,16 @@ class BandData:
         sources = self._time_reversed_sources(on_store) if self._reverse is not None and on_store is not None \
             and store is not None else None
         rows = None if sources is None else np.flatnonzero((sources[0] < 0) & (sources[1] < 0))
-        # in chunks of about CHUNK_BYTES of H, so that H(k) is built, checked and diagonalised while in cache
+        # in chunks of about CHUNK_BYTES of H, so that H(k) is built, checked and diagonalised while in cache; the
+        # whole mesh in slabs of its first axis, each built by the model's sum per axis (BlochModel.mesh_slabs)
         step = max(1, min(total, self.CHUNK_BYTES // (16 * n * n)))
-        if step >= total:  # one chunk: eigh's own arrays are the result (no copy)
-            energies, vectors = self._eigh(flat_k, mesh=store.shape if whole else None, rows=rows)
+        bounds, build = [(start, min(start + step, total)) for start in range(0, total, step)], None
+        if whole and hasattr(self.model, "mesh_slabs"):
+            bounds, build = self._mesh_chunks(store.shape, step)
+        if len(bounds) == 1:  # one chunk: eigh's own arrays are the result (no copy)
+            energies, vectors = self._eigh(flat_k, rows=rows, h=None if build is None else build(0, total))
         else:
-            energies, vectors = self._eigh_in_chunks(flat_k, step, what, rows)
+            energies, vectors = self._eigh_in_chunks(flat_k, bounds, what, rows, build)
         if rows is not None:
             energies, vectors = self._with_time_reversed(energies, vectors, rows, sources, total)
             self.stats.time_reversed += total - rows.size
@@ -402,21 +406,32 @@ class BandData:
             v[s] = self._reverse(self._store._v, in_store[s])
         return e, v
 
-    def _eigh(self, kc: np.ndarray, mesh: tuple[int, ...] | None = None, rows: np.ndarray | None = None
+    def _mesh_chunks(self, shape: tuple[int, ...], step: int):
+        """Chunk bounds (flat indices) of whole slabs of the mesh's first axis, about ``step`` points each, and
+        ``build(start, stop)``: H of the points ``start .. stop - 1`` (whole slabs) from the model's mesh sum."""
+        n = self.model.n_states
+        slab = int(np.prod(shape[1:]))
+        per = max(1, step // slab)  # slabs per chunk
+        slabs = self.model.mesh_slabs(shape)
+        bounds = [(a * slab, min(a + per, shape[0]) * slab) for a in range(0, shape[0], per)]
+
+        def build(start: int, stop: int) -> np.ndarray:
+            expected = ((stop - start) // slab,) + tuple(shape[1:]) + (n, n)
+            h = np.asarray(slabs(start // slab, stop // slab))
+            if h.shape != expected:
+                raise ShapeError(f"H on the mesh {'x'.join(map(str, shape))} has shape {h.shape} for the slabs "
+                                 f"{start // slab}..{stop // slab - 1}, expected {expected}")
+            return h.reshape(-1, n, n)
+        return bounds, build
+
+    def _eigh(self, kc: np.ndarray, rows: np.ndarray | None = None, h: np.ndarray | None = None
               ) -> tuple[np.ndarray, np.ndarray]:
-        """H(k) built, checked and diagonalised for one chunk of momenta ``(m, dim)`` (only its ``rows``, if given);
-        ``mesh``: the chunk is that whole uniform mesh in C order, so H is built by the model's mesh sum
-        (:meth:`BlochModel.hamiltonian_on_mesh`)."""
+        """H(k) built (unless given as ``h``, for every point of ``kc``), checked and diagonalised for one chunk of
+        momenta ``(m, dim)``: only its ``rows``, if given."""
         n = self.model.n_states
         checked = not getattr(self.model, "hermitian_by_construction", False)
-        points = kc if rows is None or checked else kc[rows]  # H of every point is checked, if it needs checking
-        if mesh is not None and hasattr(self.model, "hamiltonian_on_mesh"):
-            h = np.asarray(self.model.hamiltonian_on_mesh(mesh))
-            if h.shape != tuple(mesh) + (n, n):
-                raise ShapeError(f"H on the mesh {'x'.join(map(str, mesh))} has shape {h.shape}, expected "
-                                 f"{tuple(mesh) + (n, n)}")
-            h, points = h.reshape(-1, n, n), kc
-        else:
+        points = kc if rows is None or checked or h is not None else kc[rows]  # every H(k) is checked if need be
+        if h is None:
             h = np.asarray(self.model.hamiltonian(points))
         if h.shape != (points.shape[0], n, n):
             raise ShapeError(f"H(k) returned shape {h.shape}, expected {(points.shape[0], n, n)}")
@@ -426,25 +441,24 @@ class BandData:
             h = h[rows]
         return np.linalg.eigh(h)
 
-    def _eigh_in_chunks(self, flat_k: np.ndarray, step: int, what: str, rows: np.ndarray | None = None
+    def _eigh_in_chunks(self, flat_k: np.ndarray, bounds, what: str, rows: np.ndarray | None = None, build=None
                         ) -> tuple[np.ndarray, np.ndarray]:
         n = self.model.n_states
         total = flat_k.shape[0] if rows is None else rows.size
         energies = np.empty((total, n))
         vectors = np.empty((total, n, n), dtype=complex)
-        starts = range(0, flat_k.shape[0], step)
-        bar = progress_bar(len(starts), f"diagonalising {what}", "chunk",
-                           self.progress if len(starts) >= self.PROGRESS_MIN_CHUNKS else False)
+        bar = progress_bar(len(bounds), f"diagonalising {what}", "chunk",
+                           self.progress if len(bounds) >= self.PROGRESS_MIN_CHUNKS else False)
         done = 0
-        for start in starts:  # a handful of large batches, not a loop over k-points
-            chunk = flat_k[start:start + step]
+        for start, stop in bounds:  # a handful of large batches, not a loop over k-points
+            chunk = flat_k[start:stop]
+            h = None if build is None else build(start, stop)
             if rows is None:
-                part = slice(start, start + chunk.shape[0])
-                energies[part], vectors[part] = self._eigh(chunk)
+                energies[start:stop], vectors[start:stop] = self._eigh(chunk, h=h)
             else:
-                mine = rows[(rows >= start) & (rows < start + chunk.shape[0])] - start
+                mine = rows[(rows >= start) & (rows < stop)] - start
                 part = slice(done, done + mine.size)
-                energies[part], vectors[part] = self._eigh(chunk, rows=mine)
+                energies[part], vectors[part] = self._eigh(chunk, rows=mine, h=h)
                 done += mine.size
             bar.update(1)
         bar.close()

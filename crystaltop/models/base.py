@@ -182,13 +182,29 @@ class BlochModel(abc.ABC):
         ShapeError
             If ``shape`` does not have one positive entry per dimension.
         """
+        mesh = self._mesh_shape(shape)
+        return self.mesh_slabs(mesh)(0, mesh[0])
+
+    def mesh_slabs(self, shape):
+        """A function ``slab(start, stop)`` giving :meth:`hamiltonian_on_mesh` for the points whose first index
+        lies in ``start .. stop - 1``, shape ``(stop - start, *shape[1:], n_states, n_states)``: a mesh built slab
+        by slab (to bound memory) at the cost of one sum over the whole mesh.
+
+        Raises
+        ------
+        ShapeError
+            If ``shape`` does not have one positive entry per dimension.
+        """
+        return self._mesh_slabs(self._mesh_shape(shape))
+
+    def _mesh_shape(self, shape) -> tuple[int, ...]:
         try:
             mesh = tuple(int(x) for x in shape)
         except (TypeError, ValueError):
             raise ShapeError(f"mesh shape must be {self.dim} positive integers, got {shape!r}") from None
         if len(mesh) != self.dim or min(mesh) < 1:
             raise ShapeError(f"mesh shape must be {self.dim} positive integers, got {shape!r}")
-        return self._hamiltonian_on_mesh(mesh)
+        return mesh
 
     def symmetry_matrix(self, op, k) -> np.ndarray:
         """The matrix ``D_g(k)`` with ``D_g(k) H(k) D_g(k)^† = H(g k)`` for a symmetric model.
@@ -298,10 +314,14 @@ class BlochModel(abc.ABC):
     def _hamiltonian(self, k: np.ndarray) -> np.ndarray:
         """``H(k)`` for validated momenta ``k`` (..., dim)."""
 
-    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
-        """``H(k)`` on the mesh ``shape`` (validated); by default :meth:`_hamiltonian` at its points."""
-        axes = np.meshgrid(*[np.arange(n) / n for n in shape], indexing="ij")
-        return self._hamiltonian(np.stack(axes, axis=-1))
+    def _mesh_slabs(self, shape: tuple[int, ...]):
+        """``slab(start, stop)`` for the mesh ``shape`` (validated); by default :meth:`_hamiltonian` at its points."""
+        rest = [np.arange(n) / n for n in shape[1:]]
+
+        def slab(start: int, stop: int) -> np.ndarray:
+            axes = np.meshgrid(np.arange(start, stop) / shape[0], *rest, indexing="ij")
+            return self._hamiltonian(np.stack(axes, axis=-1))
+        return slab
 
     @abc.abstractmethod
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:

@@ -18,7 +18,7 @@ from ..errors import CrystaltopError, NonHermitianError, ShapeError, UnknownOper
 from ..symmetry import PointGroup
 from ..symmetry import time_reversal_matrix as _standard_time_reversal
 from .base import BlochModel, _as_unitary, as_lattice
-from .phases import bloch_sum, mesh_sum
+from .phases import MeshSum, bloch_sum
 
 __all__ = ["BlochFunction"]
 
@@ -207,11 +207,11 @@ class BlochFunction(BlochModel):
                              f"(..., n, n) = {expected} with n = {self.n_states} basis states")
         return out.astype(complex, copy=False)
 
-    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
+    def _mesh_slabs(self, shape: tuple[int, ...]):
         blocks = getattr(self, "_blocks", None)
         if blocks is None:  # a callable: evaluated at the mesh points
-            return super()._hamiltonian_on_mesh(shape)
-        return mesh_sum(shape, *blocks)
+            return super()._mesh_slabs(shape)
+        return MeshSum(shape, *blocks).slab
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:
         word = self._word_for(op)

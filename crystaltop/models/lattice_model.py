@@ -16,7 +16,7 @@ import numpy as np
 from ..errors import CrystaltopError, LatticeMismatchError, NonHermitianError, ShapeError
 from ..symmetry import expand_kinds, orbital_block, time_reversal_matrix
 from .base import BlochModel, as_lattice
-from .phases import bloch_sum, mesh_sum
+from .phases import MeshSum, bloch_sum
 
 __all__ = ["LatticeModel", "Site", "Bond"]
 
@@ -291,9 +291,9 @@ class LatticeModel(BlochModel):
         cells, blocks = self._stacked()
         return bloch_sum(k, cells, blocks)
 
-    def _hamiltonian_on_mesh(self, shape: tuple[int, ...]) -> np.ndarray:
+    def _mesh_slabs(self, shape: tuple[int, ...]):
         cells, blocks = self._stacked()
-        return mesh_sum(shape, cells, blocks)
+        return MeshSum(shape, cells, blocks).slab
 
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:
         fixed, shifts = self._symmetry_data(op)

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["lattice_phases", "bloch_sum", "mesh_sum"]
+__all__ = ["lattice_phases", "bloch_sum", "mesh_sum", "MeshSum"]
 
 
 #: below this many momenta the phases are gathered from the power tables in a few whole-array operations;
@@ -109,34 +109,65 @@ BOX_FILL = 8
 
 def mesh_sum(shape: tuple[int, ...], cells: np.ndarray, blocks: np.ndarray) -> np.ndarray:
     """``H(k) = Σ_m exp(2πi k·cells[m]) blocks[m]`` at every point ``k = j / N`` of the uniform Γ-centred mesh
-    ``shape`` (C order): ``(*shape, n, n)``, equal to :func:`bloch_sum` at those points up to rounding.
+    ``shape`` (C order): ``(*shape, n, n)``, equal to :func:`bloch_sum` at those points up to rounding
+    (:class:`MeshSum` over the whole first axis)."""
+    shape = tuple(int(x) for x in shape)
+    return MeshSum(shape, cells, blocks).slab(0, shape[0])
+
+
+class MeshSum:
+    """``H(k)`` on the uniform Γ-centred mesh ``shape``, slab by slab of its first axis.
 
     The phases factorise per axis, so the sum is taken one axis at a time, the last first: over the box of
     lattice vectors, a Fourier sum of ``R`` terms per axis (``R`` values of that coordinate), about
-    ``N^d n² R`` operations in all against ``N^d n² m`` for :func:`bloch_sum` over ``m`` vectors. Each stage is a
-    stack of products ``(1, R) @ (R, c)`` of at most :data:`SERIAL_PRODUCT` terms, each on one thread. A box more
-    than :data:`BOX_FILL` times larger than the set of vectors (a few long hoppings) is left to :func:`bloch_sum`.
+    ``N^d n² R`` operations in all against ``N^d n² m`` for :func:`bloch_sum` over ``m`` vectors. The sums over
+    every axis but the first are done once, when the object is made; :meth:`slab` does the last one for the
+    slabs asked for, so a mesh too large to hold twice is built piece by piece at the cost of one whole sum. Each
+    stage is a stack of products ``(1, R) @ (R, c)`` of at most :data:`SERIAL_PRODUCT` terms, each on one thread.
+    A box more than :data:`BOX_FILL` times larger than the set of vectors (a few long hoppings) is left to
+    :func:`bloch_sum` at the slab's points.
     """
-    shape = tuple(int(x) for x in shape)
-    m, n = blocks.shape[0], blocks.shape[-1]
-    dim = len(shape)
-    lo, hi = cells.min(axis=0, initial=0), cells.max(axis=0, initial=0)
-    extent = tuple(int(e) for e in hi - lo + 1)
-    if int(np.prod(extent)) > BOX_FILL * max(m, 1):
-        axes = np.meshgrid(*[np.arange(s) / s for s in shape], indexing="ij")
-        return bloch_sum(np.stack(axes, axis=-1), cells, blocks)
-    current = np.zeros(extent + (n * n,), dtype=complex)
-    np.add.at(current, tuple((cells - lo).T), blocks.reshape(m, n * n))  # a repeated vector adds, as in the sum
-    for axis in range(dim - 1, -1, -1):  # layout: lattice coordinates 0..axis, momenta axis+1.., then n²
-        count, terms = shape[axis], extent[axis]
-        table = np.exp((2j * np.pi / count) * np.outer(np.arange(count), np.arange(lo[axis], hi[axis] + 1)))
-        before = int(np.prod(extent[:axis]))
-        rest = current.size // (before * terms)
-        rows = current.reshape(before, 1, terms, rest)
-        out = np.empty((before, count, 1, rest), dtype=complex)
-        width = max(1, SERIAL_PRODUCT // terms)
-        for start in range(0, rest, width):  # column blocks (one for small models), not momenta
-            cols = slice(start, start + width)
-            np.matmul(table.reshape(1, count, 1, terms), rows[..., cols], out=out[..., cols])
-        current = out.reshape(extent[:axis] + shape[axis:] + (n * n,))
-    return current.reshape(shape + (n, n))
+
+    def __init__(self, shape: tuple[int, ...], cells: np.ndarray, blocks: np.ndarray):
+        self.shape = tuple(int(x) for x in shape)
+        self.cells, self.blocks = cells, blocks
+        m, n = blocks.shape[0], blocks.shape[-1]
+        self.n = n
+        lo, hi = cells.min(axis=0, initial=0), cells.max(axis=0, initial=0)
+        extent = tuple(int(e) for e in hi - lo + 1)
+        self._partial = None
+        if int(np.prod(extent)) > BOX_FILL * max(m, 1):
+            return
+        current = np.zeros(extent + (n * n,), dtype=complex)
+        np.add.at(current, tuple((cells - lo).T), blocks.reshape(m, n * n))  # a repeated vector adds, as in the sum
+        for axis in range(len(self.shape) - 1, 0, -1):  # layout: coordinates 0..axis, momenta axis+1.., then n²
+            current = _fourier_stage(current, extent, self.shape, axis, lo[axis], hi[axis])
+        self._partial = current  # (R_0, N_1, ..., n²): summed over every axis but the first
+        self._extent, self._lo, self._hi = extent, lo, hi
+
+    def slab(self, start: int, stop: int) -> np.ndarray:
+        """H at the points whose first index lies in ``start .. stop - 1``: ``(stop - start, *shape[1:], n, n)``."""
+        shape, n = self.shape, self.n
+        if self._partial is None:
+            axes = np.meshgrid(np.arange(start, stop) / shape[0], *[np.arange(s) / s for s in shape[1:]],
+                               indexing="ij")
+            return bloch_sum(np.stack(axes, axis=-1), self.cells, self.blocks)
+        out = _fourier_stage(self._partial, self._extent, shape, 0, self._lo[0], self._hi[0], rows=(start, stop))
+        return out.reshape((stop - start,) + shape[1:] + (n, n))
+
+
+def _fourier_stage(current, extent, shape, axis, lo, hi, rows=None) -> np.ndarray:
+    """Sum the lattice coordinate ``axis`` of ``current`` (coordinates 0..axis, momenta axis+1.., n²) into its
+    momenta ``j / N`` (``rows``: only ``j`` in that range)."""
+    count, terms = shape[axis], extent[axis]
+    j = np.arange(count) if rows is None else np.arange(*rows)
+    table = np.exp((2j * np.pi / count) * np.outer(j, np.arange(lo, hi + 1)))
+    before = int(np.prod(extent[:axis]))
+    rest = current.size // (before * terms)
+    source = current.reshape(before, 1, terms, rest)
+    out = np.empty((before, j.size, 1, rest), dtype=complex)
+    width = max(1, SERIAL_PRODUCT // terms)
+    for start in range(0, rest, width):  # column blocks (one for small models), not momenta
+        cols = slice(start, start + width)
+        np.matmul(table.reshape(1, j.size, 1, terms), source[..., cols], out=out[..., cols])
+    return out.reshape(extent[:axis] + (j.size,) + tuple(shape[axis + 1:]) + (current.shape[-1],))

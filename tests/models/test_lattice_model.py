@@ -329,3 +329,13 @@ def test_a_mesh_shape_that_is_not_one_positive_size_per_axis_is_refused(shape):
     model.add_site([0, 0], "s")
     with pytest.raises(ShapeError, match="mesh shape must be 2 positive integers"):
         model.hamiltonian_on_mesh(shape)
+
+
+@settings(max_examples=15, deadline=None)
+@given(model=random_lattice_models())
+def test_a_mesh_built_slab_by_slab_is_the_whole_mesh(model):
+    shape = (5, 4, 3)[: model.dim]
+    slabs = model.mesh_slabs(shape)
+    pieces = np.concatenate([slabs(0, 2), slabs(2, 3), slabs(3, 5)])
+    assert pieces.shape == shape + (model.n_states, model.n_states)
+    assert np.array_equal(pieces, model.hamiltonian_on_mesh(shape))
