@@ -8,7 +8,7 @@ from math import comb
 import numpy as np
 
 __all__ = ["ordered_product", "link_matrices", "link_determinants", "link_minors", "minor_links", "subset_phases",
-           "plucker_coordinates", "unitary_part", "batched_det", "hermitian_eigh"]
+           "diagonal_of", "plucker_coordinates", "unitary_part", "batched_det", "hermitian_eigh"]
 
 #: largest number of minors for which link determinants are formed from Plücker coordinates (one or two
 #: occupied bands only: their minors have closed forms; larger ones would need a determinant each)
@@ -66,7 +66,7 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     axis = axis + vectors.ndim if axis < 0 else axis  # as numpy counts it (a negative axis from the end)
     ket = vectors
     if phase is not None:
-        diagonal = _diagonal_of(phase)
+        diagonal = diagonal_of(phase)
         # P is diagonal in a site basis: a scaling of the rows instead of a product per k-point
         ket = diagonal[..., :, None] * vectors if diagonal is not None else np.asarray(phase) @ vectors
     bra = np.conj(np.swapaxes(vectors, -1, -2))
@@ -83,7 +83,7 @@ def link_matrices(vectors: np.ndarray, axis: int, phase: np.ndarray | None = Non
     return out
 
 
-def _diagonal_of(phase) -> np.ndarray | None:
+def diagonal_of(phase) -> np.ndarray | None:
     """The diagonal of ``phase`` (a matrix or a stack of them) if every matrix is diagonal, else None."""
     phase = np.asarray(phase)
     off = ~np.eye(phase.shape[-1], dtype=bool)
@@ -156,7 +156,7 @@ def link_determinants(vectors: np.ndarray, axis: int, phase: np.ndarray | None =
     """
     axis = axis + vectors.ndim if axis < 0 else axis
     n, m = vectors.shape[-2:]
-    diagonal = None if phase is None else _diagonal_of(phase)
+    diagonal = None if phase is None else diagonal_of(phase)
     if not _plucker_pays(n, m) or (phase is not None and diagonal is None):
         return batched_det(link_matrices(vectors, axis, phase))
     mu = plucker_coordinates(vectors) if minors is None else minors
