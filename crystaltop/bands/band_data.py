@@ -190,8 +190,7 @@ class BandData:
         flat_k = k.reshape(-1, k.shape[-1])
         total = flat_k.shape[0]
         store = self._store
-        whole = store is not None and on_store is not None and on_store.size == store._known.size \
-            and np.array_equal(on_store, np.arange(on_store.size))
+        whole = store is not None and on_store is not None and store.in_order(on_store)
         sources = self._time_reversed_sources(on_store) if self._reverse is not None and on_store is not None \
             and store is not None else None
         rows = None if sources is None else np.flatnonzero((sources[0] < 0) & (sources[1] < 0))
@@ -665,8 +664,8 @@ class BandData:
     def gap(self, grid: Grid) -> tuple[float, np.ndarray]:
         """Smallest direct gap above the occupied bands on the grid and the k-point where it occurs."""
         if grid not in self._gaps:
-            flat = self._held(grid)
-            if flat is not None and self._store._full:  # the store's energies, without gathering the eigensystem
+            flat = self._on_complete_store(grid)
+            if flat is not None:  # the store's energies, without gathering the eigensystem
                 if self._mesh_gaps is None:
                     e = self._store._e
                     self._mesh_gaps = e[:, self.filling] - e[:, self.filling - 1]
@@ -747,8 +746,8 @@ class BandData:
         determinants are better formed from the link matrices; a grid on the complete mesh store takes its part of
         the store's, which are formed once."""
         self.check_gap(grid)
-        flat = self._held(grid)
-        if flat is None or not self._store._full:  # minors of the store only once it is complete
+        flat = self._on_complete_store(grid)
+        if flat is None:  # minors of the store only once it is complete
             mu = link_minors(self.eigensystem(grid)[1][..., : self.filling])
             return (mu, None if mu is None else np.conj(mu))
         if self._mesh_minors is None:
@@ -762,13 +761,11 @@ class BandData:
             return (mu.reshape(shape), conj_mu.reshape(shape))
         return (np.take(mu, flat, axis=0), np.take(conj_mu, flat, axis=0))
 
-    def _held(self, grid: Grid) -> np.ndarray | None:
-        """The flat index of every point of ``grid`` in the mesh store, if the store holds them all; else None."""
+    def _on_complete_store(self, grid: Grid) -> np.ndarray | None:
+        """The flat index of every point of ``grid`` in the mesh store once the store knows every point of the
+        mesh (its energies and Plücker coordinates then serve every grid on it); else None."""
         store = self._store
-        if store is None:
-            return None
-        flat = store.grid_index(grid)
-        return flat if flat is not None and store.holds_all(flat) else None
+        return store.grid_index(grid) if store is not None and store.complete else None
 
     def _step_phase(self, grid: Grid, axis: int) -> np.ndarray:
         """The position phase ``exp(-2πi dk·X)`` of one step of ``grid`` along ``axis``."""

@@ -35,7 +35,7 @@ class MeshStore:
         self._scale = np.asarray(shape, dtype=float)
         self._strides = np.array([int(np.prod(shape[i + 1:])) for i in range(len(shape))])
         self._indices: dict[Grid, np.ndarray | None] = {}
-        self._full = False  # every point known (points are never forgotten)
+        self._complete = False  # every point known (points are never forgotten, so it stays true)
 
     def grid_index(self, grid: Grid) -> np.ndarray | None:
         """The flat index in the mesh of every point of ``grid`` (shape ``grid.shape``), or None if some point is
@@ -60,7 +60,18 @@ class MeshStore:
 
     def is_whole(self, grid: Grid, flat: np.ndarray) -> bool:
         """Whether ``grid`` is the mesh itself, in its order."""
-        return grid.shape == self.shape and np.array_equal(flat.reshape(-1), np.arange(flat.size))
+        return grid.shape == self.shape and self.in_order(flat)
+
+    def in_order(self, flat: np.ndarray) -> bool:
+        """Whether the flat indices ``flat`` are every point of the mesh, in the mesh's order."""
+        return flat.size == self._known.size and np.array_equal(flat.reshape(-1), np.arange(flat.size))
+
+    @property
+    def complete(self) -> bool:
+        """Whether every point of the mesh is known."""
+        if not self._complete:
+            self._complete = bool(self._known.all())
+        return self._complete
 
     def read(self, flat: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Energies and eigenvectors of known points by flat index (any shape of ``flat``)."""
@@ -86,7 +97,7 @@ class MeshStore:
             rows, flat = self.point_index(k)
         else:
             rows = None
-            if flat.size == self._known.size and energies.shape[0] == flat.size and self.adopt(energies, vectors, flat):
+            if energies.shape[0] == flat.size and self.adopt(energies, vectors, flat):
                 return
         new = ~self._known[flat]
         if not new.all():
@@ -101,24 +112,18 @@ class MeshStore:
         """Take the eigensystems of the whole mesh, in flat order, as the store's own arrays (no copy), when no
         point is known yet; False (nothing done) otherwise."""
         n = self._e.shape[1]
-        if self._known.any() or not np.array_equal(flat, np.arange(flat.size)) \
+        if self._known.any() or not self.in_order(flat) \
                 or not (energies.flags.c_contiguous and vectors.flags.c_contiguous):
             return False
         self._e, self._v = energies.reshape(-1, n), vectors.reshape(-1, n, n)
         self.energies, self.vectors = self._e.reshape(self.shape + (n,)), self._v.reshape(self.shape + (n, n))
         self._known[:] = True
-        self._full = True
+        self._complete = True
         return True
 
     def partner(self, flat: np.ndarray) -> np.ndarray:
         """The flat index of ``−k`` for each point ``k`` of ``flat`` (the mesh is closed under k -> −k)."""
         return _partners(self.shape)[flat]
-
-    def holds_all(self, flat: np.ndarray) -> bool:
-        """Whether every point of ``flat`` is known (once the whole mesh is, without looking)."""
-        if not self._full:
-            self._full = bool(self._known.all())
-        return self._full or bool(self._known[flat].all())
 
     def coordinates(self, flat: np.ndarray) -> np.ndarray:
         """The reduced momenta ``j / N`` of the mesh points with the given flat indices, ``(m, dim)``."""

@@ -22,6 +22,7 @@ import abc
 import numpy as np
 
 from ..errors import CrystaltopError, ShapeError
+from .phases import slab_points
 
 __all__ = ["BlochModel", "as_momenta", "as_lattice", "format_k"]
 
@@ -316,12 +317,7 @@ class BlochModel(abc.ABC):
 
     def _mesh_slabs(self, shape: tuple[int, ...]):
         """``slab(start, stop)`` for the mesh ``shape`` (validated); by default :meth:`_hamiltonian` at its points."""
-        rest = [np.arange(n) / n for n in shape[1:]]
-
-        def slab(start: int, stop: int) -> np.ndarray:
-            axes = np.meshgrid(np.arange(start, stop) / shape[0], *rest, indexing="ij")
-            return self._hamiltonian(np.stack(axes, axis=-1))
-        return slab
+        return lambda start, stop: self._hamiltonian(slab_points(shape, start, stop))
 
     @abc.abstractmethod
     def _symmetry_matrix(self, op, k: np.ndarray) -> np.ndarray:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["lattice_phases", "bloch_sum", "mesh_sum", "MeshSum"]
+__all__ = ["lattice_phases", "bloch_sum", "slab_points", "MeshSum"]
 
 
 #: below this many momenta the phases are gathered from the power tables in a few whole-array operations;
@@ -102,17 +102,16 @@ def bloch_sum(k: np.ndarray, cells: np.ndarray, blocks: np.ndarray) -> np.ndarra
     return out.reshape(k.shape[:-1] + (n, n))
 
 
-#: largest dense box of lattice vectors :func:`mesh_sum` fills, relative to the number of vectors (a sparse set
+#: largest dense box of lattice vectors :class:`MeshSum` fills, relative to the number of vectors (a sparse set
 #: of long hoppings is summed by :func:`bloch_sum` instead)
 BOX_FILL = 8
 
 
-def mesh_sum(shape: tuple[int, ...], cells: np.ndarray, blocks: np.ndarray) -> np.ndarray:
-    """``H(k) = Σ_m exp(2πi k·cells[m]) blocks[m]`` at every point ``k = j / N`` of the uniform Γ-centred mesh
-    ``shape`` (C order): ``(*shape, n, n)``, equal to :func:`bloch_sum` at those points up to rounding
-    (:class:`MeshSum` over the whole first axis)."""
-    shape = tuple(int(x) for x in shape)
-    return MeshSum(shape, cells, blocks).slab(0, shape[0])
+def slab_points(shape: tuple[int, ...], start: int, stop: int) -> np.ndarray:
+    """The reduced momenta ``j / N`` of the uniform mesh ``shape`` whose first index lies in ``start .. stop - 1``,
+    in C order: ``(stop - start, *shape[1:], dim)``."""
+    axes = np.meshgrid(np.arange(start, stop) / shape[0], *[np.arange(n) / n for n in shape[1:]], indexing="ij")
+    return np.stack(axes, axis=-1)
 
 
 class MeshSum:
@@ -149,9 +148,7 @@ class MeshSum:
         """H at the points whose first index lies in ``start .. stop - 1``: ``(stop - start, *shape[1:], n, n)``."""
         shape, n = self.shape, self.n
         if self._partial is None:
-            axes = np.meshgrid(np.arange(start, stop) / shape[0], *[np.arange(s) / s for s in shape[1:]],
-                               indexing="ij")
-            return bloch_sum(np.stack(axes, axis=-1), self.cells, self.blocks)
+            return bloch_sum(slab_points(shape, start, stop), self.cells, self.blocks)
         out = _fourier_stage(self._partial, self._extent, shape, 0, self._lo[0], self._hi[0], rows=(start, stop))
         return out.reshape((stop - start,) + shape[1:] + (n, n))
 
