@@ -239,27 +239,19 @@ class MirrorChern(Invariant):
 
     # ------------------------------------------------------------------ one plane
     def _occupied_on_plane(self, context, pl, n):
+        """The occupied states of a plane's ``n x n`` mesh (its gap checked on the plane's own grid, so that an
+        error names it) and its momenta (:meth:`_plane_points`), in the plane's axis order."""
         bands, dim = context.bands, context.dim
-        axes = pl.axes
+        axes, pts = pl.axes, self._plane_points(context, pl, n)
         if dim == 2:
-            grid = uniform_mesh((n, n))
-            occ = bands.occupied(grid)
-            if axes == (1, 0):
-                occ = np.swapaxes(occ, 0, 1)
-            return occ, grid.points if axes == (0, 1) else np.swapaxes(grid.points, 0, 1)
+            occ = bands.occupied(uniform_mesh((n, n)))
+            return (np.swapaxes(occ, 0, 1) if axes == (1, 0) else occ), pts
         if axes is not None:
             fixed = 3 - axes[0] - axes[1]
-            grid = plane(3, fixed, pl.level, (n, n))  # k_fixed = ±level ≡ level for a level of 0 or 1/2
-            occ = np.squeeze(bands.occupied(grid), axis=fixed)
-            pts = np.squeeze(grid.points, axis=fixed)
-            if axes[0] > axes[1]:
-                occ, pts = np.swapaxes(occ, 0, 1), np.swapaxes(pts, 0, 1)
-            return occ, pts
-        pts = pl.points(n)
-        flat = pts.reshape(-1, dim)
-        occ = bands.occupied_at(flat)  # the gap is checked on the same lookup
-        occ = occ.reshape(n, n, occ.shape[-2], bands.filling)
-        return occ, pts
+            occ = np.squeeze(bands.occupied(plane(3, fixed, pl.level, (n, n))), axis=fixed)
+            return (np.swapaxes(occ, 0, 1) if axes[0] > axes[1] else occ), pts
+        occ = bands.occupied_at(pts.reshape(-1, dim))  # the gap is checked on the same lookup
+        return occ.reshape(n, n, occ.shape[-2], bands.filling), pts
 
     def _plane(self, context, op, pl, n) -> dict:
         occ, pts = self._occupied_on_plane(context, pl, n)
