@@ -62,6 +62,7 @@ __all__ = [
     "sector_names",
     "pair_name",
     "count_sectors",
+    "sector_counts",
     "rotation_power",
     "reciprocal_basis",
 ]
@@ -726,14 +727,13 @@ def rotation_power(eigenvalues, n: int, *, tol: float = 1e-4, what: str = "") ->
         If the eigenvalues are not all n-th roots of +1, or all of −1 (a representation with a stray phase).
     """
     lam = np.asarray(eigenvalues, dtype=complex)
-    powers = lam ** int(n)
-    for s in (1, -1):
-        if np.all(np.abs(powers - s) < tol * n):
-            return s
+    power = _power_of(lam, n, tol)
+    if power is not None:
+        return power
     where = f" {what}" if what else ""
     raise SymmetryBreakingError(
         f"the eigenvalues of the {n}-fold rotation{where} are not n-th roots of +1 or of −1 (their n-th powers are "
-        f"{np.round(powers, 4).tolist()}): the representation carries a stray phase or is not a rotation")
+        f"{np.round(lam ** int(n), 4).tolist()}): the representation carries a stray phase or is not a rotation")
 
 
 def count_sectors(eigenvalues, n: int, power: int, *, tol: float = 1e-4) -> np.ndarray:
@@ -745,11 +745,42 @@ def count_sectors(eigenvalues, n: int, power: int, *, tol: float = 1e-4) -> np.n
         If an eigenvalue is farther than ``tol`` from every sector.
     """
     lam = np.asarray(eigenvalues, dtype=complex).reshape(-1)
-    sectors = rotation_sectors(n, power)
-    dist = np.abs(lam[:, None] - sectors[None, :])
-    p = np.argmin(dist, axis=1)
-    if lam.size and dist[np.arange(lam.size), p].max() > tol:
-        bad = lam[int(np.argmax(dist[np.arange(lam.size), p]))]
+    p, dist = _nearest_sectors(lam, n, power)
+    if lam.size and dist.max() > tol:
+        bad = lam[int(np.argmax(dist))]
         raise SymmetryBreakingError(f"eigenvalue {complex(np.round(bad, 5))} of a {n}-fold rotation is none of "
                                     f"{', '.join(sector_names(n, power))}")
     return np.bincount(p, minlength=n).astype(int)
+
+
+def sector_counts(eigenvalues, n: int, *, tol: float = 1e-4) -> tuple[int | None, list | None]:
+    """:func:`rotation_power` and the :func:`count_sectors` of the eigenvalues at each of several momenta (a
+    sequence of equally long arrays), in one batch: ``(power, [counts per momentum])``. ``(None, None)`` when the
+    arrays differ in length or a check fails anywhere (then take the momenta one by one, for the error that names
+    the momentum); one power must serve every momentum."""
+    if not len(eigenvalues) or len({len(lam) for lam in eigenvalues}) != 1:
+        return None, None
+    lam = np.asarray(eigenvalues, dtype=complex)  # (momenta, occupied)
+    power = _power_of(lam, n, tol)
+    if power is None:
+        return None, None
+    p, dist = _nearest_sectors(lam, n, power)
+    if dist.max(initial=0.0) > tol:
+        return None, None
+    return power, list((p[..., None] == np.arange(n)).sum(axis=1).astype(int))  # per momentum, as a bincount
+
+
+def _power_of(lam: np.ndarray, n: int, tol: float) -> int | None:
+    """+1 or −1 if every eigenvalue is an n-th root of it (within ``tol · n``), else None."""
+    powers = lam ** int(n)
+    for s in (1, -1):
+        if np.all(np.abs(powers - s) < tol * n):
+            return s
+    return None
+
+
+def _nearest_sectors(lam: np.ndarray, n: int, power: int) -> tuple[np.ndarray, np.ndarray]:
+    """The nearest sector p of each eigenvalue (0-based, any leading shape) and its distance from it."""
+    dist = np.abs(lam[..., None] - _sectors(n, power))
+    p = np.argmin(dist, axis=-1)
+    return p, np.take_along_axis(dist, p[..., None], axis=-1)[..., 0]

@@ -29,7 +29,7 @@ import numpy as np
 from crystaltop.errors import CrystaltopError, SymmetryBreakingError
 from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta,
                                hookimpl, occupied_eigenvalues_at, pair_name, planar_rotations, rotation_levels,
-                               rotation_power, rotation_sectors, sector_names)
+                               rotation_power, rotation_sectors, sector_counts, sector_names)
 
 FGB = "rotation eigenvalues (Fang, Gilbert, Bernevig, PRB 86, 115112 (2012))"
 
@@ -65,27 +65,6 @@ def paired(counts: np.ndarray, n: int, power: int, spinful: bool) -> dict | None
                 return None
             out[pair_name(lam)] = int(counts[p])
     return out
-
-
-def sector_counts(eigenvalues: list, n: int, *, tol: float = 1e-4) -> tuple[int | None, list | None]:
-    """``C_n^n`` and the :func:`count_sectors` of each momentum's eigenvalues, in one batch when every momentum
-    has as many and all pass the checks of :func:`rotation_power` and :func:`count_sectors` with one power;
-    ``(None, None)`` otherwise (the caller then goes one by one, for the error that names the momentum)."""
-    if not eigenvalues or len({len(lam) for lam in eigenvalues}) != 1:
-        return None, None
-    lam = np.asarray(eigenvalues, dtype=complex)  # (momenta, occupied)
-    powers = lam ** int(n)
-    for power in (1, -1):
-        if np.all(np.abs(powers - power) < tol * n):
-            break
-    else:
-        return None, None
-    dist = np.abs(lam[..., None] - rotation_sectors(n, power))
-    sector = np.argmin(dist, axis=-1)
-    if np.take_along_axis(dist, sector[..., None], axis=-1).max(initial=0.0) > tol:
-        return None, None
-    counts = (sector[..., None] == np.arange(n)).sum(axis=1)  # per momentum, as count_sectors' bincount
-    return power, list(counts.astype(int))
 
 
 def chern_mod_n(n: int, op_by_fold: dict, fixed: dict, eig: dict, power: int) -> tuple[int, str] | None:

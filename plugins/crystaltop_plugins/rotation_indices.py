@@ -33,7 +33,7 @@ import numpy as np
 
 from crystaltop.errors import SymmetryBreakingError
 from crystaltop.plugin import (Invariant, Outcome, Requirements, count_sectors, high_symmetry_momenta, hookimpl,
-                               occupied_eigenvalues_at, planar_rotations, rotation_power, sector_names)
+                               occupied_eigenvalues_at, planar_rotations, rotation_power, sector_counts, sector_names)
 
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
 
@@ -51,12 +51,16 @@ class RotationIndices(Invariant):
         for n, op in sorted(ops.items()):
             fixed = [m for m in momenta if op.label in m.rotations]
             lam = dict(zip([m.label for m in fixed], occupied_eigenvalues_at(bands, op, fixed)))
-            power = {rotation_power(v, n, what=f"{op.label} at {label}") for label, v in lam.items()}
-            if len(power) != 1:
-                raise SymmetryBreakingError(f"{op.label}^{n} is +1 at some momenta and −1 at others: its matrix is "
-                                            "not a consistent representation")
-            powers[n] = power.pop()
-            counts_at[n] = {label: count_sectors(v, n, powers[n]) for label, v in lam.items()}
+            power, counts = sector_counts(list(lam.values()), n)
+            if counts is None:  # some momentum fails a check: one by one, for the error that names it
+                power = {rotation_power(v, n, what=f"{op.label} at {label}") for label, v in lam.items()}
+                if len(power) != 1:
+                    raise SymmetryBreakingError(f"{op.label}^{n} is +1 at some momenta and −1 at others: its matrix "
+                                                "is not a consistent representation")
+                power = power.pop()
+                counts = [count_sectors(v, n, power) for v in lam.values()]
+            powers[n] = power
+            counts_at[n] = dict(zip(lam, counts))
             raw[f"C{n}"] = {"rotation": op.label, "eigenvalues": list(sector_names(n, powers[n])),
                             "counts": {label: c.tolist() for label, c in counts_at[n].items()}, "power": powers[n]}
             if powers[n] == 1:

@@ -152,8 +152,7 @@ def test_fang_gilbert_bernevig_value_equals_the_lattice_chern_number_mod_n(n, se
 def test_the_batched_sector_counts_equal_the_counts_momentum_by_momentum(n, power, momenta, occupied, seed, stray):
     # sector_counts (one batch) against count_sectors and rotation_power of crystaltop.plugin at each momentum; a
     # stray phase anywhere sends the caller back to the one-by-one path, which names the momentum
-    from crystaltop.plugin import count_sectors, rotation_power, rotation_sectors
-    from crystaltop_plugins.rotation_eigenvalues import sector_counts
+    from crystaltop.plugin import count_sectors, rotation_power, rotation_sectors, sector_counts
 
     rng = np.random.default_rng(seed)
     sectors = rotation_sectors(n, power)
