@@ -86,18 +86,31 @@ def _describe(sample) -> str:
 
 
 # ---------------------------------------------------------------------------------------------- measurements
-def _states(sample, cache, count):
+#: largest sample (states) whose whole spectrum is formed once and shared by its states near the gap, every core's
+#: charge and the charge map; above the solvers' own DENSE_LIMIT on purpose (one dense eigh of 4000 states takes a
+#: few seconds, against one Chebyshev estimate per core); beyond it each measurement is left to the solvers' choice
+SHARED_DENSITY_LIMIT = 4000
+
+
+def _spectrum(sample, cache):
+    """The sample's dense spectrum, formed once per sample and shared, or None for a sample too large for it."""
+    from .defects import dense_spectrum
+    from .defects.solvers import dense_wanted
+
+    if "spectrum" not in cache:
+        cache["spectrum"] = dense_spectrum(sample) if dense_wanted(sample, limit=SHARED_DENSITY_LIMIT) else None
+    return cache["spectrum"]
+
+
+def _states(sample, cache, count, share: bool = False):
+    """The states near the gap centre; ``share``: the sample's charge is measured too, so both read one dense
+    spectrum (:func:`_spectrum`) where the sample is small enough; otherwise one already formed is used."""
     from .defects import states_near
 
     if "states" not in cache:
-        cache["states"] = states_near(sample, count=min(count, sample.n_states - 2))
+        spectrum = _spectrum(sample, cache) if share else cache.get("spectrum")
+        cache["states"] = states_near(sample, count=min(count, sample.n_states - 2), spectrum=spectrum)
     return cache["states"]
-
-
-#: largest sample (states) whose exact occupied density is formed once and shared by every core's charge and the
-#: charge map; above the solvers' own DENSE_LIMIT on purpose (one dense eigh of 4000 states takes a few seconds,
-#: against one Chebyshev estimate per core); beyond it each core's charge is left to the solvers' choice
-SHARED_DENSITY_LIMIT = 4000
 
 
 def _charge(sample, cache, core=0):
@@ -105,8 +118,9 @@ def _charge(sample, cache, core=0):
 
     key = ("charge", core)
     if key not in cache:
-        if "density" not in cache and sample.n_states <= SHARED_DENSITY_LIMIT:
-            cache["density"] = occupied_density(sample, method="exact")
+        spectrum = _spectrum(sample, cache)
+        if "density" not in cache and spectrum is not None:
+            cache["density"] = occupied_density(sample, method="exact", spectrum=spectrum)
         cache[key] = bound_charge(sample, core, density=cache.get("density"))
     return cache[key]
 
@@ -168,7 +182,7 @@ def _compare_charge(predicted: float, tolerance: float, core: int = 0):
     return measure
 
 
-def _compare_bound_states(expected_per_core: int | None, wants: bool, count: int, what="states"):
+def _compare_bound_states(expected_per_core: int | None, wants: bool, count: int, what="states", share=False):
     """In-gap states bound to the cores of a sample whose cores all carry the same prediction.
 
     ``expected_per_core``: the exact number per core; or None with ``wants`` (True: at least two per core, i.e.
@@ -178,7 +192,7 @@ def _compare_bound_states(expected_per_core: int | None, wants: bool, count: int
     def measure(sample, cache):
         from .defects import local_density
 
-        near = _states(sample, cache, count)
+        near = _states(sample, cache, count, share)
         bound = near.bound(window=0.5)
         cores = len(sample.cores)
         found = int(bound.sum())
@@ -219,7 +233,7 @@ def _dislocation_jobs(model, record, dim, filling, ions, sizes, tolerance, count
             if rec.get("kramers_pair") is not None:
                 pair = bool(rec["kramers_pair"])
                 comps.append(("Kramers pair bound" if pair else "no bound states",
-                              _compare_bound_states(2 if pair else 0, pair, count)))
+                              _compare_bound_states(2 if pair else 0, pair, count, share=rec.get("charge") is not None)))
             if rec.get("charge") is not None:
                 q = float(rec["charge"])
                 comps.append((_charge_text(q, 1e-6), _compare_charge(q, tolerance)))
@@ -330,7 +344,7 @@ def _compare_corner(predicted: float, n: int, tolerance: float):
         inside = (turn < np.pi / n - 1e-9) & ~at_centre
         shared = [(inside, 1.0), ((np.abs(turn - np.pi / n) <= 1e-9) & ~at_centre, 0.5), (at_centre, 1.0 / n)]
         levels = sample.gap.centre + sample.gap.width * np.asarray(CORNER_LEVELS)
-        densities = occupied_densities_at(sample, levels)  # one dense diagonalisation for every level
+        densities = occupied_densities_at(sample, levels, spectrum=_spectrum(sample, cache))  # one diagonalisation
         charges = [sum(w * region_charge(sample, mask, dens)[0] for mask, w in shared if mask.any())
                    for dens in densities]
         charges = np.array(charges)

@@ -35,8 +35,8 @@ Examples
 from .builders import (build_sample, disclination, disclination_dipole, dislocation_line, edge_dislocation, flake,
                        rotation_centre_names, supercell)
 from .samples import Core, DefectSpec, Sample
-from .solvers import (BoundCharge, DefectMeasurement, NearStates, OccupiedDensity, bound_charge, local_density,
-                      localisation, measure_defect, occupied_density, region_charge, states_near)
+from .solvers import (BoundCharge, DefectMeasurement, NearStates, OccupiedDensity, bound_charge, dense_spectrum,
+                      local_density, localisation, measure_defect, occupied_density, region_charge, states_near)
 from .splitting import DislocationSplitting, SplitCore, SplittingStep, SplitVerdict, split_dislocation
 
 __all__ = [
@@ -56,6 +56,7 @@ __all__ = [
     "local_density",
     "localisation",
     "occupied_density",
+    "dense_spectrum",
     "OccupiedDensity",
     "bound_charge",
     "region_charge",

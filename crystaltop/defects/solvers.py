@@ -21,7 +21,7 @@ from .realspace import BulkGap
 from .samples import Sample
 
 __all__ = ["NearStates", "states_near", "local_density", "localisation", "OccupiedDensity", "occupied_density",
-           "occupied_densities_at",
+           "occupied_densities_at", "dense_spectrum", "dense_wanted",
            "BoundCharge", "bound_charge", "region_charge", "DefectMeasurement", "measure_defect"]
 
 #: Largest sample diagonalised densely by ``method="auto"``.
@@ -65,13 +65,14 @@ class NearStates:
 
 
 def states_near(sample: Sample, energy: float | None = None, count: int = 20, *, core_radius: float = 4.0,
-                edge_width: float = 2.0, tol: float = 1e-10) -> NearStates:
+                edge_width: float = 2.0, tol: float = 1e-10, spectrum=None) -> NearStates:
     """The ``count`` eigenstates nearest ``energy`` (default the gap centre), by shift and invert.
 
     ``H − σ`` is factorised once (sparse LU) and ARPACK iterates with its inverse, whose largest eigenvalues
     belong to the states nearest σ (see ``_shift_invert``). σ is moved off ``energy`` by
     1e-7 of the bandwidth so that an exactly degenerate level (a chiral zero mode) does not make the
-    factorisation singular. Samples of fewer than 600 states are diagonalised densely.
+    factorisation singular. Samples of fewer than 600 states are diagonalised densely, and so is none whose
+    whole ``spectrum`` (:func:`dense_spectrum`) is passed: the states are picked from it.
     """
     h = sample.hamiltonian
     n = h.shape[0]
@@ -79,14 +80,14 @@ def states_near(sample: Sample, energy: float | None = None, count: int = 20, *,
     count = int(count)
     if not 0 < count < n:
         raise DefectGeometryError(f"count must be between 1 and {n - 1} for a sample of {n} states, got {count}")
-    lo, hi = spectral_bounds(h)
-    if n < 600:
-        e, v = np.linalg.eigh(h.toarray())
+    if spectrum is not None or n < 600:
+        e, v = dense_spectrum(sample) if spectrum is None else spectrum
         pick = np.argsort(np.abs(e - target), kind="stable")[:count]
         pick = pick[np.argsort(e[pick])]
         energies, vectors = e[pick], v[:, pick]
         method = "dense diagonalisation (numpy.linalg.eigh)"
     else:
+        lo, hi = spectral_bounds(h)
         sigma = target + 1e-7 * (hi - lo) * np.sqrt(2.0)
         energies, vectors = _shift_invert(h, count, sigma, tol, sample.positions)
         driver = "eigs (Arnoldi)" if np.iscomplexobj(h.data) else "eigsh (Lanczos)"
@@ -246,10 +247,16 @@ class OccupiedDensity:
     """States the Chebyshev recursion touched."""
 
 
+def dense_wanted(sample: Sample, method: str = "auto", limit: int | None = None) -> bool:
+    """Whether the occupied density of ``sample`` is formed exactly for ``method``: asked for, or ``"auto"`` up to
+    ``limit`` states (default :data:`DENSE_LIMIT`)."""
+    return method == "exact" or (method == "auto" and sample.n_states <= (DENSE_LIMIT if limit is None else limit))
+
+
 def occupied_density(sample: Sample, *, fermi_energy: float | None = None, electrons: int | None = None,
                      method: str = "auto", region: np.ndarray | None = None, near_fermi: str = "empty",
                      degeneracy_tol: float | None = None, smoothing: float | None = None,
-                     tol: float = 1e-10, progress: bool | None = None) -> OccupiedDensity:
+                     tol: float = 1e-10, progress: bool | None = None, spectrum=None) -> OccupiedDensity:
     """The occupied density, by dense diagonalisation or by the Chebyshev expansion on local vectors.
 
     Parameters
@@ -272,6 +279,9 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
         error bound summed over the region exceeds 1e-3, i.e. while an in-gap state lies within a few ``w`` of E_F.
     progress : bool, optional
         Chebyshev: a progress bar over the recursion (default: on a terminal, for long recursions only).
+    spectrum : (energies, vectors), optional
+        The sample's whole spectrum (:func:`dense_spectrum`), when the caller has it: the exact method reads it
+        instead of diagonalising again.
     """
     h = sample.hamiltonian
     n = h.shape[0]
@@ -282,7 +292,7 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
         method = "exact" if n <= DENSE_LIMIT or electrons is not None else "chebyshev"
     mask = np.ones(n, dtype=bool) if region is None else np.asarray(region, dtype=bool)
     if method == "exact":
-        e, v = _dense_spectrum(sample)
+        e, v = dense_spectrum(sample) if spectrum is None else spectrum
         if electrons is not None:
             electrons = int(electrons)
             if not 0 <= electrons <= n:
@@ -313,16 +323,19 @@ def occupied_density(sample: Sample, *, fermi_energy: float | None = None, elect
 
 
 def occupied_densities_at(sample: Sample, fermi_energies, *, near_fermi: str = "empty",
-                          degeneracy_tol: float | None = None) -> list[OccupiedDensity]:
+                          degeneracy_tol: float | None = None, spectrum=None) -> list[OccupiedDensity]:
     """The exact occupied density at several Fermi levels from one dense diagonalisation (as
-    :func:`occupied_density` with ``method="exact"`` at each level)."""
+    :func:`occupied_density` with ``method="exact"`` at each level; ``spectrum`` as there)."""
     if near_fermi not in ("empty", "fill"):
         raise DefectGeometryError(f"near_fermi must be 'empty' or 'fill', got {near_fermi!r}")
-    e, v = _dense_spectrum(sample)
+    e, v = dense_spectrum(sample) if spectrum is None else spectrum
     return [_filled(sample, e, v, float(level), near_fermi, degeneracy_tol) for level in np.atleast_1d(fermi_energies)]
 
 
-def _dense_spectrum(sample: Sample) -> tuple[np.ndarray, np.ndarray]:
+def dense_spectrum(sample: Sample) -> tuple[np.ndarray, np.ndarray]:
+    """Every eigenvalue (ascending) and eigenvector of the sample's Hamiltonian, by one dense diagonalisation (a
+    real symmetric one when H is real): to be shared by :func:`states_near` and :func:`occupied_density` when
+    both measure one sample."""
     dense = sample.hamiltonian.toarray()
     if np.abs(dense.imag).max(initial=0.0) == 0.0:
         dense = dense.real  # a real symmetric eigenproblem is several times cheaper
@@ -478,10 +491,9 @@ class DefectMeasurement:
 def measure_defect(sample: Sample, *, count: int = 12, core_radius: float = 4.0, radii=None,
                    method: str = "auto", **options) -> DefectMeasurement:
     """States near the gap centre and the bound charge of every core of a sample, with convergence data."""
-    near = states_near(sample, count=min(count, sample.n_states - 1), core_radius=core_radius)
-    density = None
-    if method == "exact" or (method == "auto" and sample.n_states <= DENSE_LIMIT):
-        density = occupied_density(sample, method="exact", **options)
+    spectrum = dense_spectrum(sample) if dense_wanted(sample, method) else None
+    near = states_near(sample, count=min(count, sample.n_states - 1), core_radius=core_radius, spectrum=spectrum)
+    density = None if spectrum is None else occupied_density(sample, method="exact", spectrum=spectrum, **options)
     charges = tuple(bound_charge(sample, c, radii, method=method, density=density, **options)
                     for c in range(len(sample.cores)))
     bound = tuple(int((near.in_gap & (near.core_weight[c] > 0.5)).sum()) for c in range(len(sample.cores)))

@@ -34,8 +34,8 @@ from .builders import (MIN_MARGIN, _frank, _lattice_fold, _same_point, _step_mat
 from .geometry import polygon_distance, relevant_directions
 from .realspace import RealSpaceForm, real_space_form
 from .samples import Sample
-from .solvers import (DENSE_LIMIT, DISC_MARGIN, BoundCharge, NearStates, bound_charge, occupied_density,
-                      states_near)
+from .solvers import (DISC_MARGIN, BoundCharge, NearStates, bound_charge, dense_spectrum, dense_wanted,
+                      occupied_density, states_near)
 
 __all__ = ["split_dislocation", "DislocationSplitting", "SplittingStep", "SplitCore", "SplitVerdict",
            "FOLLOWS_PLUS", "FOLLOWS_MINUS", "SPLITS", "BOTH_CORES", "NONE_BOUND", "OPPOSITE", "UNDETERMINED",
@@ -436,10 +436,10 @@ def _room(sample: Sample, c: int) -> float:
 def _measure(s, dist, sample: Sample, radii, lattice, *, count, charge, method, tol, decisive,
              options) -> SplittingStep:
     top = float(radii[-1])
+    spectrum = dense_spectrum(sample) if charge and dense_wanted(sample, method) else None  # shared with the states
     if charge:
-        exact = method == "exact" or (method == "auto" and sample.n_states <= DENSE_LIMIT)
-        if exact:
-            density = occupied_density(sample, method="exact", **options)
+        if spectrum is not None:
+            density = occupied_density(sample, method="exact", spectrum=spectrum, **options)
         else:
             inside = sample.ion_distance_to_cores() < top
             region = (sample.state_ion >= 0) & inside[np.maximum(sample.state_ion, 0)]
@@ -449,7 +449,7 @@ def _measure(s, dist, sample: Sample, radii, lattice, *, count, charge, method, 
         charge_verdict = _charge_verdict(charges, total, tol, decisive)
     else:
         charges, total, charge_verdict = [None, None], None, SplitVerdict(NOT_MEASURED, None, "charge")
-    near = states_near(sample, count=min(int(count), sample.n_states - 1), core_radius=top)
+    near = states_near(sample, count=min(int(count), sample.n_states - 1), core_radius=top, spectrum=spectrum)
     bound = near.bound(threshold=0.5, window=0.5)
     rotation, weights = _localise(sample, near.vectors[:, bound], top)
     names = _wyckoff_names(sample, lattice)
