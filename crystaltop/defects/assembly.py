@@ -162,7 +162,7 @@ def _map_targets(rot, geom, powers, power, shift, cell, label, *, expand: bool):
             first = np.zeros(int(sites.max()) + 1, dtype=np.int64)
             first[sites] = first_label  # the first label of each site
             # labels of one site are distinct points only for states; ions are one label per site
-            new = first[np.asarray(target_site)[site]] if idx.size else site
+            new = first[np.asarray(target_site)[site]]
             rows_out.append(idx)
             cells_out.append(base + offset[site])
             labels_out.append(new)

@@ -34,7 +34,7 @@ from .builders import (MIN_MARGIN, _frank, _lattice_fold, _same_point, _step_mat
 from .geometry import polygon_distance, relevant_directions
 from .realspace import RealSpaceForm, real_space_form
 from .samples import Sample
-from .solvers import (DISC_MARGIN, BoundCharge, NearStates, bound_charge, dense_spectrum, dense_wanted,
+from .solvers import (DISC_MARGIN, BoundCharge, NearStates, _ro, bound_charge, dense_spectrum, dense_wanted,
                       occupied_density, states_near)
 
 __all__ = ["split_dislocation", "DislocationSplitting", "SplittingStep", "SplitCore", "SplitVerdict",
@@ -556,7 +556,3 @@ def _vec(s) -> str:
     return "(" + ", ".join(f"{x:g}" for x in s) + ")"
 
 
-def _ro(a):
-    a = np.asarray(a)
-    a.setflags(write=False)
-    return a
