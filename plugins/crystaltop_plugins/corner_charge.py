@@ -183,10 +183,10 @@ class CornerCharge(Invariant):
         if isinstance(chi, dict):
             raise NotApplicable(f"C{n}^{n} = −1 (π flux): the spinless corner-charge formula of {BLH} does not apply; "
                                 "the corner charge of such a model is measured on a finite flake (defects layer)")
-        q = corner_fraction(n, chi)
         by_centre = centre_values(n, chi, context.group, context.lattice, momenta)
         origin = next(iter(by_centre))
         centre = next(w for w in by_centre if w != origin) if n == 4 else origin  # where each formula's flake sits
+        q = by_centre[centre]  # corner_fraction(n, chi): centre_values gives it at that centre
         formula = FORMULAS_NO_TR[3] if n == 3 and not context.time_reversal else FORMULAS[n]
         notes = [f"{formula} ({SOURCES[n]})", "charge in units of e, electrons counted positive, ions at 1a, mod e"]
         content = wannier_content_values(context.result("disclination_charge"), n, context.filling, by_centre)
