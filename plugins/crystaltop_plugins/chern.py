@@ -57,15 +57,20 @@ class ChernNumber(Invariant):
             worst = 1.0
         return int(round(total)), abs(total - round(total)), worst
 
+    @staticmethod
+    def _mesh(context) -> int:
+        """Points per axis of the first mesh (the plan and the first pass use the same)."""
+        return int(context.option("mesh", 48 if context.dim == 2 else 24))
+
     def planned_grids(self, context):
-        n = int(context.option("mesh", 48 if context.dim == 2 else 24))
+        n = self._mesh(context)
         if context.dim == 2:
             return [uniform_mesh((n, n))]
         return [plane(3, i, 0.0, (n, n)) for i in range(3)]
 
     def compute(self, context):
         bands, dim = context.bands, context.dim
-        n = int(context.option("mesh", 48 if dim == 2 else 24))
+        n = self._mesh(context)
         largest = int(context.option("max_mesh", 384 if dim == 2 else 96))
         sign = _orientation(context.lattice)
         while True:

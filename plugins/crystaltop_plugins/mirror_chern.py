@@ -80,9 +80,14 @@ class MirrorChern(Invariant):
             raise NotApplicable("no mirror leaves a plane of the zone invariant")
         return mirrors
 
+    @staticmethod
+    def _mesh(context) -> int:
+        """Points per axis of each plane's first mesh (the plan and the first pass use the same)."""
+        return int(context.option("mesh", 48 if context.dim == 2 else 24))
+
     def planned_grids(self, context):
         dim = context.dim
-        n = int(context.option("mesh", 48 if dim == 2 else 24))
+        n = self._mesh(context)
         mirrors = self._mirrors(context)
         if dim == 2:
             return [uniform_mesh((n, n))]
@@ -98,7 +103,7 @@ class MirrorChern(Invariant):
     def compute(self, context):
         dim = context.dim
         mirrors = self._mirrors(context)
-        start = int(context.option("mesh", 48 if dim == 2 else 24))
+        start = self._mesh(context)
         largest = int(context.option("max_mesh", 192 if dim == 2 else 96))
         chern = context.result("chern")
         value, details, worst, mesh_used, checks = {}, {}, 0.0, set(), []

@@ -90,15 +90,20 @@ class Polarization(Invariant):
     title = "Polarization (Wannier-centre sum)"
     requires = Requirements(dims={1, 2, 3}, optional_uses=("chern",))
 
+    @staticmethod
+    def _mesh(context) -> int:
+        """Points per axis of the mesh (the plan and the computation use the same); even, so that the half mesh
+        is a sub-grid of it (the convergence figure at no cost)."""
+        n = int(context.option("mesh", {1: 96, 2: 48, 3: 24}[context.dim]))
+        return n + n % 2
+
     def planned_grids(self, context):
         # the mesh is used only where the Chern numbers vanish: planned where time reversal (or one dimension)
         # makes them vanish, not where that is known only once chern has run
         dim = context.dim
         if dim >= 2 and not context.time_reversal:
             return ()
-        n = int(context.option("mesh", {1: 96, 2: 48, 3: 24}[dim]))
-        n += n % 2
-        return [uniform_mesh((n,) * dim)]  # the half mesh is a sub-grid of it
+        return [uniform_mesh((self._mesh(context),) * dim)]  # the half mesh is a sub-grid of it
 
     def compute(self, context):
         dim, bands = context.dim, context.bands
@@ -110,8 +115,7 @@ class Polarization(Invariant):
                 raise NotApplicable(f"needs a vanishing Chern number, which is not known ({why})")
             if np.any(np.asarray(chern.value) != 0):
                 raise NotApplicable(f"Chern number {chern.value} is not zero: the polarization is not defined")
-        n = int(context.option("mesh", {1: 96, 2: 48, 3: 24}[dim]))
-        n += n % 2  # even, so that the half mesh is a sub-grid (convergence figure at no cost)
+        n = self._mesh(context)
         full = uniform_mesh((n,) * dim)
         half = uniform_mesh((n // 2,) * dim)
         measured, change = [], 0.0

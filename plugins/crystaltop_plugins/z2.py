@@ -241,16 +241,21 @@ class Z2Index(Invariant):
     title = "Z2 index (time reversal, T² = −1)"
     requires = Requirements(dims={2, 3}, time_reversal=True, spinful=True)
 
-    def planned_grids(self, context):
+    @staticmethod
+    def _mesh(context) -> int:
+        """Points per axis of the first pass (the plan uses the same); even: the TRIMs k_p = 1/2 and the half-zone
+        endpoints lie on the mesh."""
         n = int(context.option("mesh", 48 if context.dim == 2 else 24))
-        n += n % 2
+        return n + n % 2
+
+    def planned_grids(self, context):
+        n = self._mesh(context)
         pump = np.arange(n // 2 + 1) / n
         return [plane_grid(context.dim, spec, pump, n) for spec in invariant_planes(context.dim)]
 
     def compute(self, context):
         dim, bands = context.dim, context.bands
-        n = int(context.option("mesh", 48 if dim == 2 else 24))
-        n += n % 2  # even: the TRIMs k_p = 1/2 and the half-zone endpoints lie on the mesh
+        n = self._mesh(context)
         largest = int(context.option("max_mesh", 4 * n))
         max_refine = int(context.option("refine", MAX_REFINE))
         planes, flows, meshes = invariant_planes(dim), {}, {}
