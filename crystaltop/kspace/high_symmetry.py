@@ -61,6 +61,8 @@ __all__ = [
     "rotation_sectors",
     "sector_names",
     "pair_name",
+    "fraction_text",
+    "fraction_mod1",
     "count_sectors",
     "sector_counts",
     "rotation_power",
@@ -126,8 +128,17 @@ def _candidates(dim: int) -> np.ndarray:
 
 
 def _fraction_text(x: float) -> str:
-    f = Fraction(float(x)).limit_denominator(DENOMINATOR * 2)
+    return fraction_text(Fraction(float(x)).limit_denominator(DENOMINATOR * 2))
+
+
+def fraction_text(f: Fraction) -> str:
+    """A fraction as text: ``'3/4'``, ``'0'``, ``'-1'``."""
     return str(f.numerator) if f.denominator == 1 else f"{f.numerator}/{f.denominator}"
+
+
+def fraction_mod1(f: Fraction) -> Fraction:
+    """``f`` mod 1, in [0, 1), exactly (a charge in units of e, a coordinate in units of a lattice vector)."""
+    return f - (f.numerator // f.denominator)
 
 
 def _coordinates_name(k) -> str:

@@ -51,8 +51,8 @@ from fractions import Fraction
 import numpy as np
 
 from crystaltop.errors import NotApplicable
-from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, high_symmetry_momenta, hookimpl,
-                               planar_rotations)
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, fraction_mod1, fraction_text,
+                               high_symmetry_momenta, hookimpl, planar_rotations)
 
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
 FORMULAS = {4: "Q = (e/4)([X1^(2)] + 2[M1^(4)] + 3[M2^(4)]) mod e, flake centred at the plaquette centre",
@@ -67,14 +67,6 @@ SOURCES = {3: "derived here by counting Wannier centres and ions (common practic
            6: f"{BLH}; FROM MEMORY per PHYSICS.md §6 — to be judged by a finite-flake measurement"}
 
 
-def _mod1(q: Fraction) -> Fraction:
-    return q - (q.numerator // q.denominator)
-
-
-def _text(q: Fraction) -> str:
-    return f"{q.numerator}/{q.denominator}" if q else "0"
-
-
 def corner_fraction(n: int, chi) -> Fraction:
     """Q/e mod 1 from the reduced indices χ^(n) (first entries as listed in `rotation_indices`), for the flake
     the record's value refers to: C4 about the plaquette centre, C3 and C6 about the origin."""
@@ -86,7 +78,7 @@ def corner_fraction(n: int, chi) -> Fraction:
         q = Fraction(chi[0], 4) + Fraction(chi[1], 6)
     else:  # pragma: no cover - guarded by the requirements
         raise NotApplicable(f"no corner-charge formula for C{n}")
-    return _mod1(q)
+    return fraction_mod1(q)
 
 
 def _c3_fraction(chi, p: int, p_prime: int) -> Fraction:
@@ -95,13 +87,13 @@ def _c3_fraction(chi, p: int, p_prime: int) -> Fraction:
     χ^(3) = ([K1], [K2]) with time reversal, ([K1], [K2], [K′1], [K′2]) without; Σ_p [K_p] = 0 gives [K3]."""
     k = (chi[0], chi[1], -chi[0] - chi[1])
     if len(chi) == 2:
-        return _mod1(Fraction(k[p - 1], 3))
+        return fraction_mod1(Fraction(k[p - 1], 3))
     kp = (chi[2], chi[3], -chi[2] - chi[3])
-    return _mod1(Fraction(-(k[p - 1] + kp[p_prime - 1]), 3))
+    return fraction_mod1(Fraction(-(k[p - 1] + kp[p_prime - 1]), 3))
 
 
 def _reduced_text(w) -> str:
-    return "(" + ", ".join(_text(Fraction(float(x)).limit_denominator(12)) for x in w) + ")"
+    return "(" + ", ".join(fraction_text(Fraction(float(x)).limit_denominator(12)) for x in w) + ")"
 
 
 def rotation_centres(op, lattice) -> list[np.ndarray]:
@@ -120,7 +112,7 @@ def centre_values(n: int, chi, group, lattice, momenta) -> dict:
     if n == 6:
         return {_reduced_text(centres[0]): corner_fraction(6, chi)}
     if n == 4:  # the origin, and the plaquette centre the formula refers to
-        origin = _mod1(Fraction(3 * chi[0] + 2 * chi[1] + 3 * chi[2], 4))
+        origin = fraction_mod1(Fraction(3 * chi[0] + 2 * chi[1] + 3 * chi[2], 4))
         return {_reduced_text(w): (corner_fraction(4, chi) if np.any(w) else origin) for w in centres}
     by_label = {m.label: np.asarray(m.k, dtype=float) for m in momenta}
     out = {}
@@ -198,7 +190,7 @@ class CornerCharge(Invariant):
                 raise NotApplicable(f"without time reversal the C{n} corner-charge formula is not established, and the "
                                     f"Wannier content that would give the value is unknown "
                                     f"({_why(context, 'disclination_charge')})")
-            formula_values = {w: _text(v) for w, v in by_centre.items()}
+            formula_values = {w: fraction_text(v) for w, v in by_centre.items()}
             by_centre = content
             q = by_centre[centre]
             method = f"Wannier content of the occupied bands, q_w/{n} per corner sector (disclination_charge)"
@@ -206,19 +198,19 @@ class CornerCharge(Invariant):
                          "the value counts the Wannier centres and ions at the flake's centre")
         elif content is not None:
             agree = all(content[w] == v for w, v in by_centre.items())
-            shown = {w: _text(v) for w, v in content.items()}
+            shown = {w: fraction_text(v) for w, v in content.items()}
             cross_check = CrossCheck(f"Wannier content, q_w/{n} per corner sector (disclination_charge at Ω = +2π/{n})",
                                      shown[centre], agree, f"every centre: {shown}")
         if len(set(by_centre.values())) > 1:
             pol = context.result("polarization")
             shown = f" {tuple(pol.value)}" if pol is not None else ""
-            others = ", ".join(f"{_text(v)} about {w}" for w, v in by_centre.items() if w != centre)
+            others = ", ".join(f"{fraction_text(v)} about {w}" for w, v in by_centre.items() if w != centre)
             notes.append(f"polarization{shown} ≠ 0: the corner charge depends on where the flake is centred (Takahashi, "
                          f"Zhang, Murakami, PRB 103, 205123 (2021), from memory); the value is for a flake of whole "
                          f"unit cells centred at {centre}; {others}")
         eta = (n * q.numerator // q.denominator) % n if (n * q).denominator == 1 else None
-        details = {"n": n, "indices": tuple(chi), "fraction": _text(q), "filling_anomaly": eta, "formula": formula,
-                   "centre": centre, "by_centre": {w: _text(v) for w, v in by_centre.items()},
+        details = {"n": n, "indices": tuple(chi), "fraction": fraction_text(q), "filling_anomaly": eta, "formula": formula,
+                   "centre": centre, "by_centre": {w: fraction_text(v) for w, v in by_centre.items()},
                    "formula_by_centre": formula_values,
                    "status": ("derived (counting), checked on triangular flakes" if n == 3
                               else "formula from memory (PHYSICS.md §6)")}

@@ -123,8 +123,8 @@ from itertools import product
 import numpy as np
 
 from crystaltop.errors import CrystaltopError, NotApplicable
-from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, hookimpl,
-                               planar_rotations, rotation_sectors, wrap_reduced)
+from crystaltop.plugin import (CrossCheck, Invariant, Outcome, Requirements, count_sectors, fraction_mod1,
+                               fraction_text, hookimpl, planar_rotations, rotation_sectors, wrap_reduced)
 
 LZBH = "Li, Zhu, Benalcazar, Hughes, PRB 101, 115115 (2020)"
 BLH = "Benalcazar, Li, Hughes, PRB 99, 245151 (2019)"
@@ -294,14 +294,6 @@ def _fraction(x) -> Fraction:
     return Fraction(float(x)).limit_denominator(1000)
 
 
-def _text(f: Fraction) -> str:
-    return str(f.numerator) if f.denominator == 1 else f"{f.numerator}/{f.denominator}"
-
-
-def _mod1_fraction(f: Fraction) -> Fraction:
-    return f - (f.numerator // f.denominator)
-
-
 def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndarray, Fraction]], str]:
     """The ionic background as [(reduced position in [0, 1)², charge)] and a description of it."""
     names = {o["name"]: o for o in orbits}
@@ -311,12 +303,12 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
             pos = np.asarray(model.positions, dtype=float).reshape(-1, 2)
             q = Fraction(filling, len(pos))
             ions = [(wrap_reduced(p), q) for p in pos]
-            text = f"{_text(q)} e on each of the {len(pos)} basis states (the builders' default)"
+            text = f"{fraction_text(q)} e on each of the {len(pos)} basis states (the builders' default)"
         elif key in names:
             sites = names[key]["sites"]
             q = Fraction(filling, len(sites))
             ions = [(s, q) for s in sites]
-            text = (f"{filling} e per cell at {key}" + (f" ({_text(q)} e on each of its {len(sites)} sites)"
+            text = (f"{filling} e per cell at {key}" + (f" ({fraction_text(q)} e on each of its {len(sites)} sites)"
                                                         if len(sites) > 1 else ""))
             if spec is None:
                 text += " (default; the builders' ions=[((0, 0), filling)])"
@@ -329,7 +321,7 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
         except (TypeError, ValueError):
             raise CrystaltopError("ions must be 'sites', a Wyckoff name or [((x1, x2), charge), ...] in reduced "
                                   "coordinates") from None
-        text = "given: " + ", ".join(f"{_text(q)} e at {tuple(float(v) for v in np.round(p, 4))}" for p, q in ions)
+        text = "given: " + ", ".join(f"{fraction_text(q)} e at {tuple(float(v) for v in np.round(p, 4))}" for p, q in ions)
     merged: list[list] = []
     for p, q in ions:
         for entry in merged:
@@ -345,7 +337,7 @@ def parse_ions(spec, orbits, filling: int, model, w) -> tuple[list[tuple[np.ndar
     for p, q in merged:
         image = wrap_reduced(np.asarray(w, dtype=float) @ p)
         if not any(_same_point(image, p2) and q2 == q for p2, q2 in merged):
-            raise CrystaltopError(f"the ions are not symmetric: {_text(q)} e at {tuple(np.round(p, 4).tolist())} "
+            raise CrystaltopError(f"the ions are not symmetric: {fraction_text(q)} e at {tuple(np.round(p, 4).tolist())} "
                                   f"has no partner at its rotated position {tuple(np.round(image, 4).tolist())}")
     return [(p, q) for p, q in merged], text
 
@@ -485,8 +477,8 @@ class DisclinationCharge(Invariant):
                              "sites": [tuple(float(v) for v in x) for x in o["sites"]],
                              "wannier_centres_per_site": content[i] if len(contents) == 1 else
                              sorted({c[i] for c in contents}),
-                             "ions_per_site": _text(ions_at(ions, o["sites"][0])),
-                             "q_core": _text(content[i] - ions_at(ions, o["sites"][0])) if len(contents) == 1 else
+                             "ions_per_site": fraction_text(ions_at(ions, o["sites"][0])),
+                             "q_core": fraction_text(content[i] - ions_at(ions, o["sites"][0])) if len(contents) == 1 else
                              "varies with the decomposition (the charges do not)",
                              "frank_angles": {omega: {"radians": 2 * np.pi * e["k"] / o["fold"],
                                                       "holonomy_translation": e["T"]}
@@ -558,18 +550,18 @@ class DisclinationCharge(Invariant):
             shift = CHERN_SHIFT[o["name"]]
             cases = {}
             for k in frank_steps(o["fold"]):
-                frac = _mod1_fraction(Fraction(k, o["fold"]) * (q + c_number * shift))
+                frac = fraction_mod1(Fraction(k, o["fold"]) * (q + c_number * shift))
                 units = frac * n
                 cases[angle_label(k, o["fold"])] = {
-                    "k": k, "fraction": _text(frac), "units": int(units) if units.denominator == 1 else _text(units),
+                    "k": k, "fraction": fraction_text(frac), "units": int(units) if units.denominator == 1 else fraction_text(units),
                     "T": holonomy_translation(w, o["sites"][0], k * (n // o["fold"]))}
             first[o["name"]] = cases
         value = {core: {omega: {f"e/{n}": entry["units"], "mod 1": entry["fraction"]} for omega, entry in cases.items()}
                  for core, cases in first.items()}
         cores = {o["name"]: {"position": tuple(float(v) for v in o["sites"][0]), "site_symmetry": f"C{o['fold']}",
                              "sites": [tuple(float(v) for v in x) for x in o["sites"]],
-                             "integer_content_per_site": content[i], "chern_shift_per_site": _text(CHERN_SHIFT[o["name"]]),
-                             "ions_per_site": _text(ions_at(ions, o["sites"][0])),
+                             "integer_content_per_site": content[i], "chern_shift_per_site": fraction_text(CHERN_SHIFT[o["name"]]),
+                             "ions_per_site": fraction_text(ions_at(ions, o["sites"][0])),
                              "frank_angles": {omega: {"radians": 2 * np.pi * e["k"] / o["fold"],
                                                       "holonomy_translation": e["T"]}
                                               for omega, e in first[o["name"]].items()}}
@@ -585,7 +577,7 @@ class DisclinationCharge(Invariant):
                    "ion_background": [(tuple(float(v) for v in p), float(q)) for p, q in ions],
                    "filling": context.filling, "chern": c_number,
                    "chern_rule": {"reference_band": REFERENCE_BAND, "shift_per_unit_chern":
-                                  {k: _text(v) for k, v in CHERN_SHIFT.items()},
+                                  {k: fraction_text(v) for k, v in CHERN_SHIFT.items()},
                                   "band_representations_of_the_rest": combination},
                    "rotation_eigenvalue_counts": {label: eig.details[label]["counts"] for label in powers},
                    "generator": gen.label}
@@ -606,10 +598,10 @@ class DisclinationCharge(Invariant):
             q = Fraction(content[i]) - ions_at(ions, o["sites"][0])
             cases = {}
             for k in frank_steps(o["fold"]):
-                frac = _mod1_fraction(Fraction(k, o["fold"]) * q)
+                frac = fraction_mod1(Fraction(k, o["fold"]) * q)
                 units = frac * n
                 cases[angle_label(k, o["fold"])] = {
-                    "k": k, "fraction": _text(frac), "units": int(units) if units.denominator == 1 else _text(units),
+                    "k": k, "fraction": fraction_text(frac), "units": int(units) if units.denominator == 1 else fraction_text(units),
                     "T": holonomy_translation(w, o["sites"][0], k * (n // o["fold"]))}
             out[o["name"]] = cases
         return out
