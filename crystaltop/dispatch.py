@@ -140,6 +140,16 @@ def applicable_invariants(group, dim: int, time_reversal: bool = False, *, spinf
             if why is None]
 
 
+def _static_reason(inv, *, model, time_reversal, elements, spinful) -> str | None:
+    """Why ``inv`` does not apply to this model and group (its requirements alone), or None."""
+    return inv.requires.why_not(elements=elements, dim=model.dim, time_reversal=time_reversal, spinful=spinful)
+
+
+def _options_for(name: str, common: dict, options: dict) -> dict:
+    """The options an invariant sees: those given for all, then those given for it by name."""
+    return {**common, **options.get(name, {})}
+
+
 def _plan(invariants, *, model, group, filling, time_reversal, bands, elements, spinful, common, options) -> None:
     """Ask every invariant that applies, before any runs, for the grids it will need (the optional
     ``planned_grids(context)``), and have the band data diagonalise the union of their new points in one batch.
@@ -149,7 +159,7 @@ def _plan(invariants, *, model, group, filling, time_reversal, bands, elements, 
     """
     wanted, who, applies = [], [], set()
     for name, inv in invariants.items():
-        if inv.requires.why_not(elements=elements, dim=model.dim, time_reversal=time_reversal, spinful=spinful):
+        if _static_reason(inv, model=model, time_reversal=time_reversal, elements=elements, spinful=spinful):
             continue
         if any(used not in applies for used in inv.requires.uses):
             continue
@@ -158,7 +168,7 @@ def _plan(invariants, *, model, group, filling, time_reversal, bands, elements, 
         if planned is None:
             continue
         ctx = Context(model=model, group=group, filling=filling, time_reversal=time_reversal, bands=bands,
-                      results={}, options={**common, **options.get(name, {})}, allowed=())
+                      results={}, options=_options_for(name, common, options), allowed=())
         try:
             grids = list(planned(ctx) or ())
         except Exception:  # planning is advisory: the invariant asks for what it needs when it runs
@@ -201,7 +211,7 @@ def run_invariants(*, model, group, filling, time_reversal, bands, registry=None
           elements=elements, spinful=spinful, common=common, options=options)
     for name, inv in invariants.items():
         title = getattr(inv, "title", "") or name
-        reason = inv.requires.why_not(elements=elements, dim=model.dim, time_reversal=time_reversal, spinful=spinful)
+        reason = _static_reason(inv, model=model, time_reversal=time_reversal, elements=elements, spinful=spinful)
         if reason is None:
             for used in inv.requires.uses:
                 if used not in results:
@@ -214,7 +224,7 @@ def run_invariants(*, model, group, filling, time_reversal, bands, registry=None
             results[name] = Result(name=name, title=title, status=SKIPPED, message=reason)
             continue
         ctx = Context(model=model, group=group, filling=filling, time_reversal=time_reversal, bands=bands,
-                      results=results, options={**common, **options.get(name, {})},
+                      results=results, options=_options_for(name, common, options),
                       allowed=inv.requires.uses + inv.requires.optional_uses)
         log_start = len(bands.gap_log)
         t0 = time.perf_counter()
