@@ -157,24 +157,27 @@ def _flow(z, size, x, pump, approach, move, added: int, norm: float, gap) -> dic
             "approach": float(max(0.0, 1.0 - approach.min())), "move": float(move.max())}
 
 
-def first_pass(bands, dim: int, planes: list, n: int) -> list:
+def first_pass(bands, dim: int, planes: list, n: int) -> tuple[list, list]:
     """The flow of every plane from one batch on the n-point loops and n/2 + 1 pumping values: the record of
-    each plane whose flow needs no refinement and no finer loops, None for the others."""
+    each plane whose flow needs no refinement and no finer loops (None for the others), and per plane its centres,
+    smallest loop norm and gap on those values (the start of :func:`track_plane` for a plane left to it)."""
     pump = np.arange(n // 2 + 1) / n
     found = centres_on_planes(bands, dim, planes, [pump] * len(planes), n)
     x = np.stack([c[0] for c in found])
     z, size = largest_gap(x)
     approach, move = step_checks(z, size, x)
     bad = ((approach < GAP_CHECK) | (move > MOVE_CHECK)).any(axis=-1)
-    return [None if norm < NORM_CHECK or bad[i] else
-            _flow(z[i], size[i], x[i], pump, approach[i], move[i], 0, norm, gap)
-            for i, (_, norm, gap) in enumerate(found)]
+    records = [None if norm < NORM_CHECK or bad[i] else
+               _flow(z[i], size[i], x[i], pump, approach[i], move[i], 0, norm, gap)
+               for i, (_, norm, gap) in enumerate(found)]
+    return records, found
 
 
-def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int) -> dict:
-    """Wannier-centre flow of one plane with adaptive pumping steps; the plane's Z2 and its figures of merit."""
+def track_plane(bands, dim: int, spec: dict, n: int, max_refine: int, start=None) -> dict:
+    """Wannier-centre flow of one plane with adaptive pumping steps; the plane's Z2 and its figures of merit.
+    ``start``: the plane's centres, loop norm and gap on the first n/2 + 1 pumping values, when known already."""
     pump = np.arange(n // 2 + 1) / n
-    x, norm, gap = centres_on(bands, dim, spec, pump, n)
+    x, norm, gap = centres_on(bands, dim, spec, pump, n) if start is None else start
     added = 0
     for level in range(max_refine + 1):
         if norm < NORM_CHECK:  # loops too coarse to trust the centres: the caller doubles the loop mesh first
@@ -260,17 +263,17 @@ class Z2Index(Invariant):
         max_refine = int(context.option("refine", MAX_REFINE))
         planes, flows, meshes = invariant_planes(dim), {}, {}
         try:  # every plane in one batch; a plane that needs refinement or finer loops is tracked on its own below
-            done = first_pass(bands, dim, planes, n)
+            done, starts = first_pass(bands, dim, planes, n)
         except GapClosedError:  # found again, with the plane named, plane by plane below
-            done = [None] * len(planes)
-        for spec, flow in zip(planes, done):
+            done, starts = [None] * len(planes), [None] * len(planes)
+        for spec, flow, start in zip(planes, done, starts):
             if flow is not None:
                 flows[spec["key"]], meshes[spec["key"]] = flow, n
                 continue
             m = n
             while True:
-                try:
-                    flow = track_plane(bands, dim, spec, m, max_refine)
+                try:  # the first pass's centres start the tracking on its mesh
+                    flow = track_plane(bands, dim, spec, m, max_refine, start=start if m == n else None)
                 except GapClosedError as exc:
                     raise GapClosedError(f"on {spec['where']}: {exc}") from None
                 if flow["norm"] >= NORM_CHECK:
